@@ -1,0 +1,72 @@
+"""The ``whorl`` command line: one module per subcommand.
+
+Each subcommand module defines ``HELP`` (one line), ``add_args(parser)`` and
+``handle(args) -> int``. :func:`main` turns the library's typed errors into
+messages and exit statuses: 2 for bad input, 1 for a failure while meshing
+or solving.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import logging
+import sys
+
+from whorl.cases.errors import CaseError
+from whorl.meshes.errors import MeshError
+from whorl.solver.errors import SolveError
+
+SUBCOMMANDS = ("run", "check", "mesh", "sweep", "materials")
+
+EXIT_OK, EXIT_FAILED, EXIT_BAD_INPUT = 0, 1, 2
+
+
+def build_parser() -> argparse.ArgumentParser:
+    from whorl import __version__
+
+    parser = argparse.ArgumentParser(
+        prog="whorl", description="2D eddy-current and induction solver driven by case files.")
+    parser.add_argument("--version", action="version", version=f"whorl {__version__}")
+    parser.add_argument("-v", "--verbose", action="store_true", help="log debug messages")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", required=True)
+    for name in SUBCOMMANDS:
+        try:
+            module = importlib.import_module(f"whorl.cases.cli.{name}")
+        except ModuleNotFoundError as exc:  # a subcommand not built yet
+            if exc.name != f"whorl.cases.cli.{name}":
+                raise
+            continue
+        p = sub.add_parser(name, help=module.HELP, description=module.HELP)
+        module.add_args(p)
+        p.set_defaults(handler=module.handle)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Run the command line; returns the exit status."""
+    parser = build_parser()
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exc:  # argparse: --help exits 0, usage errors exit 2
+        return int(exc.code or 0)
+    logging.basicConfig(level=logging.DEBUG if args.verbose else logging.WARNING,
+                        format="%(levelname)s %(name)s: %(message)s")
+    try:
+        return int(args.handler(args) or 0)
+    except CaseError as exc:
+        print(f"whorl: bad input: {exc}", file=sys.stderr)
+        return EXIT_BAD_INPUT
+    except MeshError as exc:
+        print(f"whorl: meshing failed: {exc}", file=sys.stderr)
+        return EXIT_FAILED
+    except SolveError as exc:
+        print(f"whorl: solve failed: {exc}", file=sys.stderr)
+        return EXIT_FAILED
+    except KeyboardInterrupt:
+        print("whorl: interrupted", file=sys.stderr)
+        return 130
+
+
+if __name__ == "__main__":
+    sys.exit(main())

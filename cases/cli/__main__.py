@@ -1,0 +1,5 @@
+import sys
+
+from whorl.cases.cli import main
+
+sys.exit(main())

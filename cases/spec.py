@@ -1,0 +1,105 @@
+"""The parsed case: plain data produced by the loader and consumed by the runner.
+
+Geometry (regions, domain, loops, lines, points) stays in the case's length
+unit; every other value is SI.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from whorl.meshes.geometry import Geometry
+
+
+@dataclass(frozen=True)
+class LoopSpec:
+    """A closed contour. Axisymmetric: the circle through ``at`` = (r, z).
+    Planar: two long sides at ``start`` and ``end`` (length unit), length = depth."""
+
+    name: str
+    turns: float = 1.0
+    at: tuple[float, float] | None = None
+    start: tuple[float, float] | None = None
+    end: tuple[float, float] | None = None
+
+
+@dataclass(frozen=True)
+class LineSpec:
+    name: str
+    start: tuple[float, float]
+    end: tuple[float, float]
+    samples: int = 101
+
+
+@dataclass(frozen=True)
+class PointSpec:
+    name: str
+    at: tuple[float, float]
+
+
+@dataclass(frozen=True)
+class StudySpec:
+    """``kind`` is harmonic, static or transient; ``frequencies`` in Hz (static: (0.0,))."""
+
+    kind: str
+    frequencies: tuple[float, ...] = ()
+    end_s: float | None = None
+    step_s: float | None = None
+    scheme: str = "bdf2"
+    save_every: int = 10
+
+
+@dataclass(frozen=True)
+class OutputSpec:
+    folder: Path = Path("results")
+    fields: bool = False
+    plots: bool = False
+
+
+@dataclass(frozen=True)
+class SweepSpec:
+    """``axes`` maps a parameter name to its list of values (each a string or number
+    as a parameter override accepts it)."""
+
+    mode: str
+    axes: dict = field(default_factory=dict)
+
+
+@dataclass
+class Case:
+    """A validated case file.
+
+    ``geometry`` holds regions and domain in the length unit (``unit_m`` metres
+    each) with no skin depths yet; ``region_material`` names the material of
+    every region and of the background under the key ``"domain"``;
+    ``materials`` holds every material used, by material name.
+    """
+
+    name: str
+    title: str
+    notes: str
+    geometry_kind: str
+    length_unit: str
+    unit_m: float
+    depth_m: float
+    order: int
+    parameters: dict
+    materials: dict
+    region_material: dict
+    geometry: Geometry
+    boundary: dict
+    sources: tuple
+    shorted: tuple
+    study: StudySpec
+    loops: tuple = ()
+    lines: tuple = ()
+    points: tuple = ()
+    output: OutputSpec = field(default_factory=OutputSpec)
+    sweep: SweepSpec | None = None
+    path: Path | None = None
+    document: dict = field(default_factory=dict)
+
+    @property
+    def axisymmetric(self) -> bool:
+        return self.geometry_kind == "axisymmetric"

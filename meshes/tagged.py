@@ -1,0 +1,50 @@
+"""The tagged mesh handed from the mesher to the solver."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+
+@dataclass
+class TaggedMesh:
+    """A scikit-fem triangle mesh in metres with named regions and sides.
+
+    Attributes
+    ----------
+    mesh : skfem.MeshTri
+        Coordinates in metres. ``mesh.subdomains`` maps every region name and
+        the background name (``"domain"``: everything outside all regions) to
+        element indices; ``mesh.boundaries`` maps every domain side name
+        (``left right bottom top outer axis``) to facet indices.
+    regions : tuple of str
+        Region names in case-file order (the background is not included).
+    unit_m : float
+        Metres per length unit of the case (for writing meshes back out).
+    axisymmetric : bool
+        True when x is the radius r and y the axial coordinate z.
+    """
+
+    mesh: object
+    regions: tuple[str, ...]
+    unit_m: float = 1.0
+    axisymmetric: bool = False
+    background: str = "domain"
+    info: dict = field(default_factory=dict)
+
+    def elements(self, name: str) -> np.ndarray:
+        """Element indices of a region (or of the background)."""
+        return self.mesh.subdomains[name]
+
+    def region_of_element(self) -> np.ndarray:
+        """Integer array: index into ``(background,) + regions`` for every element."""
+        out = np.zeros(self.mesh.t.shape[1], dtype=np.int32)
+        for i, name in enumerate(self.regions, start=1):
+            out[self.mesh.subdomains[name]] = i
+        return out
+
+    def refined(self, times: int = 1) -> TaggedMesh:
+        """Uniformly refined copy (regions and sides carried over)."""
+        return TaggedMesh(self.mesh.refined(times), self.regions, self.unit_m,
+                          self.axisymmetric, self.background, dict(self.info))

@@ -1,0 +1,49 @@
+"""The problem handed to the solver: a tagged mesh plus physics, no case file."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from whorl.meshes.tagged import TaggedMesh
+from whorl.solver.boundary import FluxParallel
+from whorl.solver.materials import Material
+
+
+@dataclass
+class Problem:
+    """A 2D eddy-current problem.
+
+    Attributes
+    ----------
+    mesh : TaggedMesh (metres)
+    materials : dict
+        Material of every region name and of the background (``mesh.background``).
+    sources : tuple of Stranded, Massive, AppliedField
+    boundary : dict
+        Condition per side name; sides not listed are flux-parallel. The
+        axis of an axisymmetric model always has A = 0.
+    depth_m : float
+        Planar models: out-of-plane length in m; totals are for this depth.
+    order : int
+        Lagrange order of the elements, 1 or 2.
+    shorted : tuple of Shorted
+        Planar conductor groups joined at their ends.
+    """
+
+    mesh: TaggedMesh
+    materials: dict[str, Material]
+    sources: tuple = ()
+    boundary: dict = field(default_factory=dict)
+    depth_m: float = 1.0
+    order: int = 2
+    shorted: tuple = ()
+
+    @property
+    def axisymmetric(self) -> bool:
+        return self.mesh.axisymmetric
+
+    def condition(self, side: str):
+        return self.boundary.get(side, FluxParallel())
+
+    def material(self, region: str) -> Material:
+        return self.materials[region]
