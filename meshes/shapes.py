@@ -44,6 +44,14 @@ class Rectangle:
     def area(self) -> float:
         return self.size[0] * self.size[1]
 
+    def thickness(self) -> float:
+        """Least width: the shorter side (length unit)."""
+        return min(self.size)
+
+    def curvature_radius(self) -> float:
+        """Smallest radius of curvature of the boundary (inf: straight sides)."""
+        return math.inf
+
 
 @register_shape("circle")
 @dataclass(frozen=True)
@@ -62,6 +70,14 @@ class Circle:
 
     def area(self) -> float:
         return math.pi * self.radius**2
+
+    def thickness(self) -> float:
+        """Least width: the diameter (length unit)."""
+        return 2.0 * self.radius
+
+    def curvature_radius(self) -> float:
+        """Smallest radius of curvature of the boundary (length unit)."""
+        return self.radius
 
 
 @register_shape("ring")
@@ -87,6 +103,14 @@ class Ring:
     def area(self) -> float:
         return math.pi * (self.outer**2 - self.inner**2)
 
+    def thickness(self) -> float:
+        """Least width: outer minus inner radius (length unit)."""
+        return self.outer - self.inner
+
+    def curvature_radius(self) -> float:
+        """Smallest radius of curvature of the boundary: the inner radius."""
+        return self.inner
+
 
 @register_shape("polygon")
 @dataclass(frozen=True)
@@ -110,3 +134,13 @@ class Polygon:
         p = self.points
         s = sum(p[i][0] * p[(i + 1) % len(p)][1] - p[(i + 1) % len(p)][0] * p[i][1] for i in range(len(p)))
         return abs(s) / 2
+
+    def thickness(self) -> float:
+        """Estimated width 2 area / perimeter (exact for a long strip; length unit)."""
+        p = self.points
+        perimeter = sum(math.dist(p[i], p[(i + 1) % len(p)]) for i in range(len(p)))
+        return 2.0 * self.area() / perimeter
+
+    def curvature_radius(self) -> float:
+        """Smallest radius of curvature of the boundary (inf: straight sides)."""
+        return math.inf

@@ -1,0 +1,84 @@
+"""Field quantities of a solution at the quadrature points, per element.
+
+Conventions: RMS phasors; time averages are Re(...) of RMS products with no
+factor 1/2. Planar: J and E along z, B = (Bx, By). Axisymmetric: J and E
+along phi, B = (Br, Bz).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from whorl.solver.sources import Stranded
+
+
+@dataclass
+class QuadratureFields:
+    """Arrays of shape (elements, quadrature points) unless noted.
+
+    ``dv`` is the volume of each quadrature point's share: dx times depth
+    (planar) or dx times 2 pi r (axisymmetric), in m^3, so a total is
+    ``(q * dv).sum()``. ``ds`` is the plain cross-section measure in m^2.
+    """
+
+    x: np.ndarray        # (2, E, Q) coordinates in m
+    a: np.ndarray        # A, Wb/m
+    b: np.ndarray        # (2, E, Q) flux density, T
+    e: np.ndarray        # E along z or phi, V/m
+    j: np.ndarray        # J along z or phi, A/m^2
+    loss: np.ndarray     # |J|^2 / sigma in conductors, W/m^3
+    energy: np.ndarray   # time-average magnetic energy density nu |B|^2 / 2, J/m^3
+    force: np.ndarray    # (2, E, Q) time-average Lorentz force density Re(J x B*), N/m^3
+    dv: np.ndarray
+    ds: np.ndarray
+
+
+def element_sources(solution):
+    """Per element: the branch voltage term u (complex) and the stranded current density."""
+    system = solution.system
+    problem = solution.problem
+    nel = problem.mesh.mesh.t.shape[1]
+    u = np.zeros(nel, dtype=complex)
+    for i, br in enumerate(system.branches):
+        for r in br.regions:
+            u[problem.mesh.elements(r)] = solution.branch_u[i]
+    js = np.zeros(nel, dtype=complex)
+    for s in problem.sources:
+        if isinstance(s, Stranded):
+            current = solution.source_current(s)
+            for sign, regions in ((1, s.regions), (-1, s.return_regions)):
+                for r in regions:
+                    js[problem.mesh.elements(r)] += sign * s.turns * current / system.areas[r]
+    return u, js
+
+
+def interpolate_complex(basis, vec):
+    """Value and gradient of a complex finite-element vector at the quadrature points."""
+    re = basis.interpolate(np.ascontiguousarray(vec.real))
+    im = basis.interpolate(np.ascontiguousarray(vec.imag))
+    return re.value + 1j * im.value, re.grad + 1j * im.grad
+
+
+def quadrature_fields(solution) -> QuadratureFields:
+    """Evaluate every field quantity of ``solution`` at the quadrature points."""
+    system = solution.system
+    basis, form = system.basis, system.form
+    x = basis.mapping.F(basis.X)  # (2, E, Q)
+    a, grad_a = interpolate_complex(basis, solution.a)
+    bx, by = form.flux_density(a, grad_a, x)
+    b = np.array([bx, by])
+    u, js = element_sources(solution)
+    sigma = system.sigma[:, None]
+    e = -1j * solution.omega * a + form.voltage_field(u[:, None], x) * (sigma > 0)
+    j = sigma * e + js[:, None]
+    loss = sigma * np.abs(e) ** 2  # |J|^2 / sigma where eddy currents flow, 0 elsewhere
+    energy = 0.5 * system.nu[:, None] * (np.abs(b[0]) ** 2 + np.abs(b[1]) ** 2)
+    if system.problem.axisymmetric:
+        force = np.array([np.real(j * np.conj(b[1])), -np.real(j * np.conj(b[0]))])
+    else:
+        force = np.array([-np.real(j * np.conj(b[1])), np.real(j * np.conj(b[0]))])
+    ds = basis.dx
+    dv = system.kappa * ds * form.weight(x)
+    return QuadratureFields(x, a, b, e, j, loss, energy, force, dv, ds)

@@ -1,0 +1,81 @@
+"""Values at points and along lines: A, B, H, E, J and loss density."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from whorl.postprocess.fields import element_sources
+
+
+@dataclass
+class Probe:
+    """Field values at points (arrays over the points; complex RMS phasors).
+
+    ``x`` (2, P) in m; ``b`` and ``h`` (2, P); ``inside`` False where a point
+    lies outside the mesh (its values are NaN).
+    """
+
+    x: np.ndarray
+    a: np.ndarray
+    b: np.ndarray
+    h: np.ndarray
+    e: np.ndarray
+    j: np.ndarray
+    loss: np.ndarray
+    inside: np.ndarray
+
+
+def _locate(basis, points):
+    """Element of every point (-1 outside) without raising."""
+    finder = basis.mesh.element_finder(mapping=basis.mapping)
+    cells = np.full(points.shape[1], -1, dtype=np.int64)
+    for k in range(points.shape[1]):
+        try:
+            cells[k] = finder(points[0, k:k + 1], points[1, k:k + 1])[0]
+        except ValueError:
+            cells[k] = -1
+    return cells
+
+
+def probe(solution, points_m) -> Probe:
+    """Evaluate the solution at ``points_m`` (2, P) in metres."""
+    system = solution.system
+    basis, form = system.basis, system.form
+    points = np.asarray(points_m, dtype=float).reshape(2, -1)
+    npts = points.shape[1]
+    cells = _locate(basis, points)
+    inside = cells >= 0
+    a = np.full(npts, np.nan, dtype=complex)
+    grad = np.full((2, npts), np.nan, dtype=complex)
+    if inside.any():
+        c = cells[inside]
+        pts = basis.mapping.invF(points[:, inside, None], tind=c)
+        dofs = basis.element_dofs[:, c]
+        coeff = solution.a[dofs]  # (Nbfun, P)
+        val = np.zeros(c.size, dtype=complex)
+        g = np.zeros((2, c.size), dtype=complex)
+        for k in range(basis.Nbfun):
+            phi = basis.elem.gbasis(basis.mapping, pts, k, tind=c)[0]
+            val += coeff[k] * phi.value[:, 0]
+            g += coeff[k] * phi.grad[:, :, 0]
+        a[inside], grad[:, inside] = val, g
+    x = points
+    bx, by = form.flux_density(a, grad, x)
+    b = np.array([bx, by])
+    nu = np.where(inside, system.nu[np.maximum(cells, 0)], np.nan)
+    sigma = np.where(inside, system.sigma[np.maximum(cells, 0)], 0.0)
+    u, js = element_sources(solution)
+    cu = np.maximum(cells, 0)
+    e = -1j * solution.omega * a + np.where(sigma > 0, form.voltage_field(u[cu], x), 0)
+    j = sigma * e + np.where(inside, js[cu], np.nan)
+    loss = sigma * np.abs(e) ** 2
+    return Probe(points, a, b, nu * b, e, j, loss, inside)
+
+
+def line_points(start_m, end_m, samples: int) -> np.ndarray:
+    """Evenly spaced points from ``start_m`` to ``end_m`` inclusive, shape (2, samples)."""
+    t = np.linspace(0.0, 1.0, samples)
+    s, e = np.asarray(start_m, float), np.asarray(end_m, float)
+    return (s[:, None] + (e - s)[:, None] * t[None, :])

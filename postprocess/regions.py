@@ -1,0 +1,63 @@
+"""Totals per region: current, loss, stored energy, Lorentz force."""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from whorl.postprocess.fields import quadrature_fields
+
+
+@dataclass
+class RegionTotals:
+    """Totals of one region (time averages; planar per model depth, axisymmetric full turn).
+
+    current_a : complex net current through the cross-section (A, RMS)
+    loss_w : eddy-current loss (W)
+    magnetic_energy_j : time-average stored magnetic energy (J)
+    force_n : (Fx, Fy) or (Fr, Fz) time-average Lorentz force (N); Fr of a full ring is 0
+    """
+
+    name: str
+    current_a: complex
+    loss_w: float
+    magnetic_energy_j: float
+    force_n: tuple[float, float]
+    area_m2: float
+    peak_loss_density_w_per_m3: float = 0.0
+    peak_loss_at_m: tuple[float, float] | None = None
+
+
+def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
+    """Totals of the background (``domain``) and every region of the solution's mesh."""
+    q = fields if fields is not None else quadrature_fields(solution)
+    tagged = solution.problem.mesh
+    names = (tagged.background, *tagged.regions)
+    index = tagged.region_of_element()
+    n = len(names)
+
+    def per_region(values):
+        return np.bincount(index, weights=values, minlength=n)
+
+    current = per_region((q.j * q.ds).sum(1).real) + 1j * per_region((q.j * q.ds).sum(1).imag)
+    loss = per_region((q.loss * q.dv).sum(1))
+    energy = per_region((q.energy * q.dv).sum(1))
+    area = per_region(q.ds.sum(1))
+    if solution.problem.axisymmetric:
+        fx = np.zeros(n)  # the radial forces of a full ring cancel
+    else:
+        fx = per_region((q.force[0] * q.dv).sum(1))
+    fy = per_region((q.force[1] * q.dv).sum(1))
+    peak = q.loss.max(axis=1)
+    out = {}
+    for i, name in enumerate(names):
+        elems = np.flatnonzero(index == i)
+        top, at = 0.0, None
+        if elems.size and peak[elems].max() > 0:
+            e = elems[np.argmax(peak[elems])]
+            k = np.argmax(q.loss[e])
+            top, at = float(q.loss[e, k]), (float(q.x[0, e, k]), float(q.x[1, e, k]))
+        out[name] = RegionTotals(name, complex(current[i]), float(loss[i]), float(energy[i]),
+                                 (float(fx[i]), float(fy[i])), float(area[i]), top, at)
+    return out

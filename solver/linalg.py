@@ -1,0 +1,55 @@
+"""Sparse direct solvers behind one small interface, registered by name.
+
+A backend is a factory ``factorize(matrix) -> solve`` where ``solve(rhs)``
+returns the solution; the matrix is complex CSC. ``"auto"`` picks the first
+available backend in ``PREFERENCE``.
+"""
+
+from __future__ import annotations
+
+import scipy.sparse.linalg as spla
+
+from whorl.solver.errors import SolveError
+
+BACKENDS: dict[str, object] = {}
+PREFERENCE: list[str] = []
+
+
+def register_backend(name: str, available=lambda: True, preferred: bool = False):
+    """Decorator: register ``factorize`` under ``name``."""
+
+    def wrap(factorize):
+        factorize.available = available
+        BACKENDS[name] = factorize
+        if preferred:
+            PREFERENCE.insert(0, name)
+        else:
+            PREFERENCE.append(name)
+        return factorize
+
+    return wrap
+
+
+@register_backend("scipy-superlu")
+def superlu(matrix):
+    """SciPy's SuperLU with the minimum-degree ordering on A^T + A (good for
+    the structurally symmetric systems of this solver)."""
+    try:
+        lu = spla.splu(matrix.tocsc(), permc_spec="MMD_AT_PLUS_A")
+    except RuntimeError as exc:  # "Factor is exactly singular"
+        raise SolveError(f"the system is singular ({exc}): a region floats or a source "
+                         "is not tied to anything") from exc
+    return lu.solve
+
+
+def choose(name: str = "auto") -> tuple[str, object]:
+    """The backend ``name`` (or the best available one for ``"auto"``)."""
+    if name == "auto":
+        for candidate in PREFERENCE:
+            if BACKENDS[candidate].available():
+                return candidate, BACKENDS[candidate]
+    if name not in BACKENDS:
+        raise SolveError(f"unknown linear solver {name!r}; known: {', '.join(BACKENDS)}")
+    if not BACKENDS[name].available():
+        raise SolveError(f"linear solver {name!r} is not installed")
+    return name, BACKENDS[name]

@@ -1,0 +1,244 @@
+"""Assemble the real matrices of a problem once; combine them per frequency.
+
+Unknowns, in order: the potential A at every finite-element dof (N), the
+voltage unknown u of every branch (see :mod:`.circuits`), and the current of
+every voltage-driven source. The full matrix at angular frequency omega is
+
+    S(omega) = S0 + j omega S1
+
+with S0 and S1 real and assembled once, so a frequency list costs one
+factorisation per frequency and no reassembly.
+
+Rows, with kappa = depth (planar) or 2 pi (axisymmetric):
+
+- field:    (K + j w M) A - sum_b c_b u_b - sum_s f_s I_s = sum_s' f_s' I_s'
+- branch b: -j w c_b^T A + G_b u_b - sign_b I_s(b) = sign_b I (current-driven) or 0
+- massive source s driven by voltage:   kappa sum_b sign_b u_b = V_s
+- stranded source s driven by voltage:  j w kappa f_s^T A + R_s I_s = V_s
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+import scipy.sparse as sp
+from skfem import Basis, ElementTriP0, ElementTriP1, ElementTriP2, asm
+
+from whorl.solver import axisymmetric, planar
+from whorl.solver.boundary import AppliedFieldSide, FluxNormal, FluxParallel, Open, Potential
+from whorl.solver.circuits import Branch, branches
+from whorl.solver.coefficients import eddy_conductivity, reluctivity
+from whorl.solver.errors import SolveError
+from whorl.solver.sources import AppliedField, Massive, Stranded
+
+ELEMENTS = {1: ElementTriP1, 2: ElementTriP2}
+
+
+def formulation(problem):
+    """The module of weak forms for the problem's geometry."""
+    return axisymmetric if problem.axisymmetric else planar
+
+
+@dataclass
+class System:
+    """Assembled matrices and bookkeeping for one problem (one mesh)."""
+
+    problem: object
+    form: object
+    basis: object
+    nu: np.ndarray
+    sigma: np.ndarray
+    kappa: float
+    branches: tuple[Branch, ...]
+    driven: tuple  # voltage-driven sources, in unknown order
+    S0: sp.csr_matrix
+    S1: sp.csr_matrix
+    stranded_load: dict  # source name -> f_s (field rows, per ampere)
+    region_bases: dict = field(default_factory=dict)
+    areas: dict = field(default_factory=dict)
+    fixed: np.ndarray | None = None  # indices of fixed field dofs
+    fixed_values: np.ndarray | None = None
+    coupling: np.ndarray | None = None  # (N, branches): c_b, int_b sigma v (x r^0)
+    conductance: np.ndarray | None = None  # (branches,): G_b
+
+    @property
+    def n_field(self) -> int:
+        return self.basis.N
+
+    @property
+    def size(self) -> int:
+        return self.S0.shape[0]
+
+    def matrix(self, omega: float) -> sp.csr_matrix:
+        return (self.S0 + (1j * omega) * self.S1).tocsr()
+
+    def rhs(self, omega: float) -> np.ndarray:
+        """Right-hand side at omega (currents of current-driven sources, voltages)."""
+        b = np.zeros(self.size, dtype=complex)
+        nf, nb = self.n_field, len(self.branches)
+        for s in self.problem.sources:
+            if isinstance(s, Stranded) and s.voltage is None:
+                b[:nf] += s.current * self.stranded_load[s.name]
+        for i, br in enumerate(self.branches):
+            src = self.source(br.source)
+            if src is not None and src.voltage is None:
+                b[nf + i] = br.sign * src.current
+        for k, s in enumerate(self.driven):
+            b[nf + nb + k] = s.voltage
+        return b
+
+    def source(self, name):
+        for s in self.problem.sources:
+            if s.name == name:
+                return s
+        return None
+
+    def region_basis(self, region: str):
+        if region not in self.region_bases:
+            elems = self.problem.mesh.elements(region)
+            self.region_bases[region] = self.basis.with_elements(elems) if hasattr(
+                self.basis, "with_elements") else Basis(
+                self.basis.mesh, self.basis.elem, elements=elems, intorder=self.basis.intorder)
+        return self.region_bases[region]
+
+
+def _p0(basis, values):
+    """Interpolate a per-element array as a piecewise constant at quadrature points."""
+    return basis.with_element(ElementTriP0()).interpolate(values)
+
+
+def assemble(problem, progress=None) -> System:
+    """Assemble the real matrices S0, S1 of ``problem``."""
+    if problem.order not in ELEMENTS:
+        raise SolveError(f"element order must be 1 or 2, got {problem.order}")
+    form = formulation(problem)
+    mesh = problem.mesh.mesh
+    basis = Basis(mesh, ELEMENTS[problem.order](), intorder=2 * problem.order)
+    nu = reluctivity(problem)
+    sigma = eddy_conductivity(problem)
+    kappa = 2 * np.pi if problem.axisymmetric else problem.depth_m
+    if progress:
+        progress("assembling")
+    K = asm(form.stiffness, basis, nu=_p0(basis, nu))
+    M = asm(form.conductor_mass, basis, sigma=_p0(basis, sigma))
+    brs = branches(problem)
+    driven = tuple(s for s in problem.sources
+                   if isinstance(s, Massive | Stranded) and s.voltage is not None)
+    system = System(problem, form, basis, nu, sigma, kappa, brs, driven,
+                    None, None, {})
+
+    def region_vectors(region):
+        rb = system.region_basis(region)
+        s_r = problem.materials[region].conductivity
+        ones = np.ones(rb.nelems)
+        c = asm(form.voltage_coupling, rb, sigma=s_r * ones[:, None])
+        g = float(asm(form.voltage_conductance, rb, sigma=s_r * ones[:, None]))
+        return c, g
+
+    nf, nb, nd = basis.N, len(brs), len(driven)
+    C = np.zeros((nf, nb))
+    G = np.zeros(nb)
+    for i, br in enumerate(brs):
+        for r in br.regions:
+            c, g = region_vectors(r)
+            C[:, i] += c
+            G[i] += g
+    for s in problem.sources:
+        if isinstance(s, Stranded):
+            f = np.zeros(nf)
+            for sign, regions in ((1.0, s.regions), (-1.0, s.return_regions)):
+                for r in regions:
+                    rb = system.region_basis(r)
+                    area = float(asm(form.cross_section, rb))
+                    system.areas[r] = area
+                    f += sign * s.turns / area * asm(form.source_load, rb,
+                                                     j=np.ones((rb.nelems, 1)))
+            system.stranded_load[s.name] = f
+
+    system.coupling, system.conductance = C, G
+    # Blocks of S0 (omega-free) and S1 (multiplied by j omega).
+    C_sp = sp.csr_matrix(C)
+    S0 = [[K, -C_sp, None], [None, sp.diags(G), None], [None, None, None]]
+    S1 = [[M, None, None], [-C_sp.T, None, None], [None, None, None]]
+    if nd:
+        FI = np.zeros((nf, nd))     # field rows, driven-current columns
+        BI = np.zeros((nb, nd))     # branch rows, driven-current columns
+        IU = np.zeros((nd, nb))     # driven rows, branch columns (S0)
+        IA = np.zeros((nd, nf))     # driven rows, field columns (S1)
+        RR = np.zeros(nd)
+        for k, s in enumerate(driven):
+            if isinstance(s, Stranded):
+                FI[:, k] = -system.stranded_load[s.name]
+                IA[k] = kappa * system.stranded_load[s.name]
+                RR[k] = s.resistance
+            else:
+                for i, br in enumerate(brs):
+                    if br.source == s.name:
+                        BI[i, k] = -br.sign
+                        IU[k, i] = kappa * br.sign
+        S0[0][2] = sp.csr_matrix(FI)
+        S0[1][2] = sp.csr_matrix(BI)
+        S0[2][1] = sp.csr_matrix(IU)
+        S0[2][2] = sp.diags(RR)
+        S1[2][0] = sp.csr_matrix(IA)
+    n = nf + nb + nd
+    shapes = (nf, nb, nd)
+    system.S0 = _block(S0, shapes, n)
+    system.S1 = _block(S1, shapes, n)
+    system.fixed, system.fixed_values = dirichlet(problem, basis, form)
+    if problem.mesh.axisymmetric is False and system.fixed.size == 0:
+        raise SolveError("no side of the domain fixes A (every side is flux-normal): "
+                         "the potential floats; make at least one side flux-parallel")
+    return system
+
+
+def _block(blocks, shapes, n):
+    """bmat that tolerates empty block rows and columns."""
+    rows = []
+    for i, row in enumerate(blocks):
+        if shapes[i] == 0:
+            continue
+        rows.append([blk if blk is not None or shapes[j] == 0 else
+                     sp.csr_matrix((shapes[i], shapes[j])) for j, blk in enumerate(row)
+                     if shapes[j] > 0])
+    out = sp.bmat(rows, format="csr")
+    assert out.shape == (n, n)
+    return out
+
+
+def dirichlet(problem, basis, form):
+    """Fixed field dofs and their values from the side conditions (A in Wb/m)."""
+    mesh = problem.mesh.mesh
+    dofs, values = [], []
+    applied = [s for s in problem.sources if isinstance(s, AppliedField)]
+    sides = list(mesh.boundaries) if mesh.boundaries else []
+    for side in sides:
+        cond = problem.condition(side)
+        if side == "axis" and problem.axisymmetric:
+            cond = FluxParallel()
+        if isinstance(cond, FluxNormal):
+            continue
+        if isinstance(cond, Open):
+            raise SolveError(f"side {side!r}: the open boundary is not available yet")
+        d = basis.get_dofs(side).all()
+        if isinstance(cond, FluxParallel):
+            v = np.zeros(d.size, dtype=complex)
+        elif isinstance(cond, Potential):
+            v = np.full(d.size, complex(cond.value))
+        elif isinstance(cond, AppliedFieldSide):
+            if not applied:
+                raise SolveError(f"side {side!r} is 'applied-field' but no applied-field source")
+            x, y = basis.doflocs[:, d]
+            v = sum(form.applied_potential(s.flux_density, x, y) for s in applied)
+            v = np.asarray(v, dtype=complex) * np.ones(d.size)
+        else:
+            raise SolveError(f"side {side!r}: unknown condition {cond!r}")
+        dofs.append(d)
+        values.append(v)
+    if not dofs:
+        return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=complex)
+    d = np.concatenate(dofs)
+    v = np.concatenate(values)
+    d, first = np.unique(d, return_index=True)  # a corner shared by two sides: first wins
+    return d, v[first]
