@@ -58,7 +58,7 @@ def interpolate_complex(basis, vec):
     """Value and gradient of a complex finite-element vector at the quadrature points."""
     re = basis.interpolate(np.ascontiguousarray(vec.real))
     im = basis.interpolate(np.ascontiguousarray(vec.imag))
-    return re.value + 1j * im.value, re.grad + 1j * im.grad
+    return np.asarray(re) + 1j * np.asarray(im), re.grad + 1j * im.grad
 
 
 def quadrature_fields(solution) -> QuadratureFields:

@@ -58,7 +58,7 @@ def probe(solution, points_m) -> Probe:
         g = np.zeros((2, c.size), dtype=complex)
         for k in range(basis.Nbfun):
             phi = basis.elem.gbasis(basis.mapping, pts, k, tind=c)[0]
-            val += coeff[k] * phi.value[:, 0]
+            val += coeff[k] * np.asarray(phi)[:, 0]
             g += coeff[k] * phi.grad[:, :, 0]
         a[inside], grad[:, inside] = val, g
     x = points
