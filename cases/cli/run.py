@@ -1,0 +1,34 @@
+"""``whorl run CASE``: mesh, solve and write the results folder."""
+
+from __future__ import annotations
+
+from whorl.cases.loader import load_case
+from whorl.cases.output import output_root
+from whorl.cases.parameters import parse_set_args
+from whorl.cases.progress import StageReporter
+from whorl.cases.run import CAUTION, run_case
+from whorl.postprocess.summary import summary_text
+
+HELP = "mesh, solve and write results (results.json, tables, log) for a case file"
+
+
+def add_args(parser) -> None:
+    parser.add_argument("case", help="the case file (TOML)")
+    parser.add_argument("--out", metavar="FOLDER", help="output folder (overrides [output] folder)")
+    parser.add_argument("--set", dest="overrides", action="append", default=[],
+                        metavar="NAME=VALUE", help="override a parameter, e.g. freq=\"10 kHz\"")
+    parser.add_argument("-q", "--quiet", action="store_true", help="no progress messages")
+
+
+def handle(args) -> int:
+    case = load_case(args.case, parse_set_args(args.overrides))
+    root = output_root(case, args.out)
+    outcome = run_case(case, root, StageReporter(quiet=args.quiet))
+    print(summary_text(outcome.results))
+    print()
+    print(f"results in {outcome.folder}")
+    for f in outcome.files:
+        print(f"  {f.relative_to(outcome.folder)}")
+    print()
+    print("Caution: " + CAUTION)
+    return 0

@@ -1,0 +1,139 @@
+"""Run one case: mesh, solve, postprocess, write the results folder.
+
+The only layer that decides where files go. Everything a run writes lands in
+``OUTPUT/CASE_NAME/`` at once (see :mod:`.output`).
+"""
+
+from __future__ import annotations
+
+import json
+import logging
+import platform
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from whorl import __version__
+from whorl.cases import model
+from whorl.cases.output import staged_folder
+from whorl.meshes.build import build_mesh
+from whorl.postprocess.records import solution_record
+from whorl.postprocess.tables import REGION_COLUMNS, line_rows, region_rows, write_csv
+from whorl.solver.harmonic import solve_harmonic
+
+log = logging.getLogger(__name__)
+
+CAUTION = (
+    "Results are estimates from an idealised model (linear materials, 2D geometry). "
+    "Confirm them by measurement before relying on them. Induction equipment works at "
+    "high voltage and current, heats parts to dangerous temperatures and produces "
+    "fields to which exposure limits apply: follow local codes, the equipment maker's "
+    "instructions and licensed practice."
+)
+
+
+@dataclass
+class RunOutcome:
+    """What a run produced: the results record and the folder it was written to."""
+
+    results: dict
+    folder: Path
+    files: list[Path] = field(default_factory=list)
+    solutions: list = field(default_factory=list)
+
+
+def solve_case(case, progress=None, mesh=None):
+    """Mesh (unless ``mesh`` is given) and solve ``case``; returns (results, solutions, mesh)."""
+    say = progress or (lambda message: None)
+    timing = {}
+    t0 = time.perf_counter()
+    if mesh is None:
+        say("meshing")
+        mesh = build_mesh(model.sized_geometry(case), progress=say)
+    timing["mesh"] = time.perf_counter() - t0
+    problem = model.problem(case, mesh)
+    frequencies = list(case.study.frequencies)
+    solutions, info = solve_harmonic(problem, frequencies, progress=say)
+    timing["assemble"] = info["assemble_s"]
+    timing["solve"] = info["solve_s"]
+    say("postprocessing")
+    t1 = time.perf_counter()
+    points = {p.name: (p.at[0] * case.unit_m, p.at[1] * case.unit_m) for p in case.points}
+    records = [solution_record(s, points) for s in solutions]
+    timing["postprocess"] = time.perf_counter() - t1
+    timing["total"] = time.perf_counter() - t0
+    system = solutions[0].system
+    results = {
+        "format": 1,
+        "whorl_version": __version__,
+        "case": {"name": case.name, "title": case.title, "geometry": case.geometry_kind,
+                 "depth_m": None if case.axisymmetric else case.depth_m,
+                 "length_unit": case.length_unit, "study": case.study.kind},
+        "parameters": dict(case.parameters),
+        "mesh": {"nodes": int(mesh.mesh.p.shape[1]), "elements": int(mesh.mesh.t.shape[1]),
+                 "dofs": int(system.size), "order": case.order,
+                 "min_quality": mesh.info.get("min_quality")},
+        "timing_s": timing,
+        "solver": {"backend": info["backend"], "unknowns": info["unknowns"],
+                   "machine": platform.machine(), "python": platform.python_version()},
+        "solutions": records,
+        "caution": CAUTION,
+    }
+    return results, solutions, mesh
+
+
+def write_results(case, results, solutions, folder: Path) -> list[Path]:
+    """Write results.json, regions.csv, line tables and the case into ``folder``."""
+    files = []
+    path = folder / "results.json"
+    path.write_text(json.dumps(results, indent=2, allow_nan=True), encoding="utf-8")
+    files.append(path)
+    files.append(write_csv(folder / "regions.csv", REGION_COLUMNS,
+                           region_rows(results["solutions"])))
+    for line in case.lines:
+        header, rows = None, []
+        for s in solutions:
+            h, r = line_rows(s, [v * case.unit_m for v in line.start],
+                             [v * case.unit_m for v in line.end], line.samples,
+                             case.unit_m, case.length_unit)
+            header = ["frequency_hz", *h]
+            rows += [[s.frequency_hz, *row] for row in r]
+        files.append(write_csv(folder / f"line_{line.name}.csv", header, rows))
+    if case.path is not None:
+        text = Path(case.path).read_text(encoding="utf-8")
+        files.append(folder / "case.toml")
+        files[-1].write_text(text, encoding="utf-8")
+    resolved = {"name": case.name, "parameters": case.parameters,
+                "frequencies_hz": list(case.study.frequencies), "document": case.document}
+    files.append(folder / "case.resolved.json")
+    files[-1].write_text(json.dumps(resolved, indent=2, default=str), encoding="utf-8")
+    return files
+
+
+def run_case(case, root: Path, progress=None) -> RunOutcome:
+    """Solve ``case`` and write ``root/CASE_NAME/``; returns what was written."""
+    final = Path(root) / case.name
+    with staged_folder(final) as tmp:
+        handler = logging.FileHandler(tmp / "run.log", encoding="utf-8")
+        handler.setFormatter(logging.Formatter("%(asctime)s %(levelname)s %(name)s: %(message)s"))
+        whorl_log = logging.getLogger("whorl")
+        whorl_log.addHandler(handler)
+        old_level = whorl_log.level
+        whorl_log.setLevel(logging.INFO)
+        try:
+            log.info("whorl %s: case %s (%s)", __version__, case.name, case.path)
+
+            def say(message):
+                log.info(message)
+                if progress:
+                    progress(message)
+
+            results, solutions, _ = solve_case(case, say)
+            files = write_results(case, results, solutions, tmp)
+            log.info("done in %.2f s", results["timing_s"]["total"])
+        finally:
+            whorl_log.removeHandler(handler)
+            whorl_log.setLevel(old_level)
+            handler.close()
+    files = [final / f.relative_to(tmp) for f in files] + [final / "run.log"]
+    return RunOutcome(results, final, files, solutions)

@@ -1,0 +1,86 @@
+"""Plain, JSON-ready records of a solution, in the shape of ``results.json``.
+
+Complex values become ``[real, imaginary]`` pairs (RMS phasors); losses and
+forces are time averages; planar totals are for the model depth,
+axisymmetric ones for the full turn.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from whorl.postprocess.circuits import source_results
+from whorl.postprocess.fields import quadrature_fields
+from whorl.postprocess.probes import probe
+from whorl.postprocess.regions import region_totals
+
+
+def pair(z) -> list[float]:
+    """A complex number as [real, imaginary]."""
+    z = complex(z)
+    return [float(z.real), float(z.imag)]
+
+
+def region_record(t) -> dict:
+    return {
+        "current_a": pair(t.current_a),
+        "current_rms_a": float(abs(t.current_a)),
+        "loss_w": t.loss_w,
+        "magnetic_energy_j": t.magnetic_energy_j,
+        "force_n": [t.force_n[0], t.force_n[1]],
+        "area_m2": t.area_m2,
+        "peak_loss_density_w_per_m3": t.peak_loss_density_w_per_m3,
+        "peak_loss_at_m": list(t.peak_loss_at_m) if t.peak_loss_at_m else None,
+    }
+
+
+def source_record(s) -> dict:
+    return {
+        "current_a": pair(s.current_a),
+        "voltage_v": pair(s.voltage_v),
+        "impedance_ohm": pair(s.impedance_ohm),
+        "resistance_ohm": s.resistance_ohm,
+        "inductance_h": s.inductance_h,
+        "power_w": s.power_w,
+        "reactive_power_var": s.reactive_power_var,
+        "flux_linkage_wb": pair(s.flux_linkage_wb),
+    }
+
+
+def point_record(p, k: int) -> dict:
+    return {
+        "inside": bool(p.inside[k]),
+        "potential_wb_per_m": pair(p.a[k]),
+        "flux_density_t": [pair(p.b[0, k]), pair(p.b[1, k])],
+        "field_strength_a_per_m": [pair(p.h[0, k]), pair(p.h[1, k])],
+        "electric_field_v_per_m": pair(p.e[k]),
+        "current_density_a_per_m2": pair(p.j[k]),
+        "loss_density_w_per_m3": float(p.loss[k]),
+    }
+
+
+def solution_record(solution, points=None) -> dict:
+    """The ``solutions[i]`` entry of results.json.
+
+    ``points`` maps a point name to its coordinates in metres.
+    """
+    fields = quadrature_fields(solution)
+    regions = region_totals(solution, fields)
+    sources = source_results(solution)
+    record = {
+        "frequency_hz": solution.frequency_hz,
+        "regions": {name: region_record(t) for name, t in regions.items()},
+        "sources": {name: source_record(s) for name, s in sources.items()},
+        "loops": {},
+        "points": {},
+        "totals": {
+            "loss_w": float(sum(t.loss_w for t in regions.values())),
+            "magnetic_energy_j": float(sum(t.magnetic_energy_j for t in regions.values())),
+        },
+    }
+    if points:
+        names = list(points)
+        xy = np.array([points[n] for n in names], dtype=float).T
+        p = probe(solution, xy)
+        record["points"] = {n: point_record(p, k) for k, n in enumerate(names)}
+    return record

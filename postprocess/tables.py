@@ -1,0 +1,67 @@
+"""Tables (CSV): regions per frequency, samples along lines.
+
+Writers write to the path they are given and nothing else.
+"""
+
+from __future__ import annotations
+
+import csv
+from pathlib import Path
+
+import numpy as np
+
+from whorl.postprocess.probes import line_points, probe
+
+REGION_COLUMNS = ("frequency_hz", "region", "current_re_a", "current_im_a", "current_rms_a",
+                  "loss_w", "magnetic_energy_j", "force_x_n", "force_y_n")
+
+
+def write_csv(path, header, rows) -> Path:
+    """Write ``rows`` under ``header`` to ``path`` (UTF-8, comma separated)."""
+    path = Path(path)
+    with path.open("w", newline="", encoding="utf-8") as fh:
+        w = csv.writer(fh)
+        w.writerow(header)
+        w.writerows(rows)
+    return path
+
+
+def region_rows(records) -> list[list]:
+    """One row per region per frequency from ``solutions`` records of results.json."""
+    rows = []
+    for rec in records:
+        for name, r in rec["regions"].items():
+            rows.append([rec["frequency_hz"], name, *r["current_a"], r["current_rms_a"],
+                         r["loss_w"], r["magnetic_energy_j"], *r["force_n"]])
+    return rows
+
+
+def line_rows(solution, start_m, end_m, samples: int, unit_m: float, unit: str):
+    """Header and rows of A, B, H, E, J and loss density along a straight line.
+
+    Coordinates are written in the case's length unit; field values in SI.
+    Complex values are written as _re and _im columns (RMS phasors).
+    """
+    pts = line_points(start_m, end_m, samples)
+    p = probe(solution, pts)
+    dist = np.hypot(pts[0] - pts[0, 0], pts[1] - pts[1, 0])
+    comp = ("r", "z") if solution.problem.axisymmetric else ("x", "y")
+    header = [f"{comp[0]}_{unit}", f"{comp[1]}_{unit}", f"distance_{unit}"]
+    columns = [pts[0] / unit_m, pts[1] / unit_m, dist / unit_m]
+
+    def add(name, values):
+        header.extend([f"{name}_re", f"{name}_im"])
+        columns.extend([values.real, values.imag])
+
+    add("a_wb_per_m", p.a)
+    add(f"b{comp[0]}_t", p.b[0])
+    add(f"b{comp[1]}_t", p.b[1])
+    header.append("b_rms_t")
+    columns.append(np.sqrt(np.abs(p.b[0]) ** 2 + np.abs(p.b[1]) ** 2))
+    add(f"h{comp[0]}_a_per_m", p.h[0])
+    add(f"h{comp[1]}_a_per_m", p.h[1])
+    add("e_v_per_m", p.e)
+    add("j_a_per_m2", p.j)
+    header.append("loss_density_w_per_m3")
+    columns.append(p.loss)
+    return header, np.array(columns).T.tolist()
