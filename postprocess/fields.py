@@ -74,7 +74,7 @@ def quadrature_fields(solution) -> QuadratureFields:
     e = -1j * solution.omega * a + form.voltage_field(u[:, None], x) * (sigma > 0)
     j = sigma * e + js[:, None]
     loss = sigma * np.abs(e) ** 2  # |J|^2 / sigma where eddy currents flow, 0 elsewhere
-    energy = 0.5 * system.nu[:, None] * (np.abs(b[0]) ** 2 + np.abs(b[1]) ** 2)
+    energy = 0.5 * system.nu_q * (np.abs(b[0]) ** 2 + np.abs(b[1]) ** 2)
     if system.problem.axisymmetric:
         force = np.array([np.real(j * np.conj(b[1])), -np.real(j * np.conj(b[0]))])
     else:

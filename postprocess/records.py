@@ -7,12 +7,18 @@ axisymmetric ones for the full turn.
 
 from __future__ import annotations
 
+import logging
+
 import numpy as np
 
+from whorl.postprocess.balance import TOLERANCE, power_balance
 from whorl.postprocess.circuits import source_results
 from whorl.postprocess.fields import quadrature_fields
 from whorl.postprocess.probes import probe
 from whorl.postprocess.regions import region_totals
+
+
+log = logging.getLogger(__name__)
 
 
 def pair(z) -> list[float]:
@@ -67,6 +73,11 @@ def solution_record(solution, points=None) -> dict:
     fields = quadrature_fields(solution)
     regions = region_totals(solution, fields)
     sources = source_results(solution)
+    balance = power_balance(solution, regions, sources)
+    if balance["applies"] and balance["relative_mismatch"] > TOLERANCE:
+        log.error("power balance off at %g Hz: terminals %s VA, fields %s VA (mismatch %.2e): "
+                  "the impedance is not to be trusted", solution.frequency_hz,
+                  balance["terminals_va"], balance["fields_va"], balance["relative_mismatch"])
     record = {
         "frequency_hz": solution.frequency_hz,
         "regions": {name: region_record(t) for name, t in regions.items()},
@@ -76,6 +87,8 @@ def solution_record(solution, points=None) -> dict:
         "totals": {
             "loss_w": float(sum(t.loss_w for t in regions.values())),
             "magnetic_energy_j": float(sum(t.magnetic_energy_j for t in regions.values())),
+            "winding_loss_w": balance["winding_loss_w"],
+            "power_balance": balance,
         },
     }
     if points:

@@ -30,6 +30,7 @@ from whorl.solver.boundary import AppliedFieldSide, FluxNormal, FluxParallel, Op
 from whorl.solver.circuits import Branch, branches
 from whorl.solver.coefficients import eddy_conductivity, reluctivity
 from whorl.solver.errors import SolveError
+from whorl.solver.kelvin import glue, reluctivity_factor
 from whorl.solver.sources import AppliedField, Massive, Stranded
 
 ELEMENTS = {1: ElementTriP1, 2: ElementTriP2}
@@ -47,7 +48,7 @@ class System:
     problem: object
     form: object
     basis: object
-    nu: np.ndarray
+    nu: np.ndarray  # per element (m/H)
     sigma: np.ndarray
     kappa: float
     branches: tuple[Branch, ...]
@@ -59,6 +60,8 @@ class System:
     areas: dict = field(default_factory=dict)
     fixed: np.ndarray | None = None  # indices of fixed field dofs
     fixed_values: np.ndarray | None = None
+    nu_q: np.ndarray | None = None  # at quadrature points, exterior-disk factor included
+    target: np.ndarray | None = None  # unknown i is identified with unknown target[i]
     coupling: np.ndarray | None = None  # (N, branches): c_b, int_b sigma v (x r^0)
     conductance: np.ndarray | None = None  # (branches,): G_b
 
@@ -120,7 +123,13 @@ def assemble(problem, progress=None) -> System:
     kappa = 2 * np.pi if problem.axisymmetric else problem.depth_m
     if progress:
         progress("assembling")
-    K = asm(form.stiffness, basis, nu=_p0(basis, nu))
+    nu_q = np.asarray(_p0(basis, nu))
+    kelvin = problem.mesh.kelvin
+    if kelvin is not None:
+        ext = problem.mesh.elements(kelvin.subdomain)
+        x = basis.mapping.F(basis.X)[:, ext]
+        nu_q[ext] *= reluctivity_factor(x, kelvin, problem.axisymmetric)
+    K = asm(form.stiffness, basis, nu=nu_q)
     M = asm(form.conductor_mass, basis, sigma=_p0(basis, sigma))
     brs = branches(problem)
     driven = tuple(s for s in problem.sources
@@ -157,6 +166,7 @@ def assemble(problem, progress=None) -> System:
             system.stranded_load[s.name] = f
 
     system.coupling, system.conductance = C, G
+    system.nu_q = nu_q
     # Blocks of S0 (omega-free) and S1 (multiplied by j omega).
     C_sp = sp.csr_matrix(C)
     S0 = [[K, -C_sp, None], [None, sp.diags(G), None], [None, None, None]]
@@ -187,6 +197,9 @@ def assemble(problem, progress=None) -> System:
     system.S0 = _block(S0, shapes, n)
     system.S1 = _block(S1, shapes, n)
     system.fixed, system.fixed_values = dirichlet(problem, basis, form)
+    system.target = np.arange(n)
+    if kelvin is not None:
+        system.target[:nf] = glue(basis, kelvin)
     if problem.mesh.axisymmetric is False and system.fixed.size == 0:
         raise SolveError("no side of the domain fixes A (every side is flux-normal): "
                          "the potential floats; make at least one side flux-parallel")
@@ -213,14 +226,19 @@ def dirichlet(problem, basis, form):
     dofs, values = [], []
     applied = [s for s in problem.sources if isinstance(s, AppliedField)]
     sides = list(mesh.boundaries) if mesh.boundaries else []
+    kelvin = problem.mesh.kelvin
     for side in sides:
         cond = problem.condition(side)
-        if side == "axis" and problem.axisymmetric:
+        if kelvin is not None and side == kelvin.arc:
+            continue  # glued to the domain's circle
+        if side == "axis" and problem.axisymmetric or kelvin and side == kelvin.axis_side:
             cond = FluxParallel()
         if isinstance(cond, FluxNormal):
             continue
         if isinstance(cond, Open):
-            raise SolveError(f"side {side!r}: the open boundary is not available yet")
+            if kelvin is None:
+                raise SolveError(f"side {side!r} is open but the mesh has no exterior disk")
+            continue
         d = basis.get_dofs(side).all()
         if isinstance(cond, FluxParallel):
             v = np.zeros(d.size, dtype=complex)
@@ -236,6 +254,10 @@ def dirichlet(problem, basis, form):
             raise SolveError(f"side {side!r}: unknown condition {cond!r}")
         dofs.append(d)
         values.append(v)
+    if kelvin is not None and not problem.axisymmetric:
+        # The exterior disk's centre is the point at infinity: A = 0 there fixes the gauge.
+        dofs.append(np.array([kelvin.centre_node]))
+        values.append(np.zeros(1, dtype=complex))
     if not dofs:
         return np.zeros(0, dtype=np.int64), np.zeros(0, dtype=complex)
     d = np.concatenate(dofs)
