@@ -25,7 +25,7 @@ import skfem
 from whorl.meshes.errors import MeshError
 from whorl.meshes.geometry import DomainSpec, Geometry
 from whorl.meshes.sizing import SizingPlan, domain_bbox, sizing_plan
-from whorl.meshes.tagged import TaggedMesh
+from whorl.meshes.tagged import KelvinMap, TaggedMesh
 
 BACKGROUND = "domain"
 _TRIANGLE = 2  # gmsh element type: 3-node triangle
@@ -78,6 +78,7 @@ def build_mesh(geometry: Geometry, progress=None) -> TaggedMesh:
         say("drawing geometry")
         owners = _draw(geometry)
         sides = _side_curves(geometry)
+        kelvin = _exterior_disk(geometry, owners, sides) if geometry.domain.open_boundary else None
         _physical_groups(geometry, owners, sides)
         say("setting size fields")
         _size_fields(geometry, plan, owners)
@@ -88,6 +89,8 @@ def build_mesh(geometry: Geometry, progress=None) -> TaggedMesh:
             raise MeshError(f"gmsh failed to mesh: {err}{_log_tail()}") from err
         say("tagging mesh")
         tagged = _to_skfem(geometry, owners, sides)
+        if kelvin is not None:
+            tagged.kelvin = _kelvin_map(tagged, geometry, kelvin)
     finally:
         try:
             gmsh.logger.stop()
@@ -231,8 +234,56 @@ def _side_curves(geometry: Geometry) -> dict[str, list[int]]:
     return sides
 
 
+def _exterior_disk(geometry: Geometry, owners, sides):
+    """Add the exterior disk of an open boundary beside the domain (a copy of the domain
+    circle shifted by 3 radii; along z in axisymmetric models so it stays on the axis) and
+    make its arc's mesh a translated copy of the domain's. Returns the offset."""
+    domain = geometry.domain
+    if domain.shape != "circle":
+        raise MeshError("an open boundary needs a circle domain")
+    occ = gmsh.model.occ
+    r = domain.radius
+    offset = (0.0, 3.0 * r) if geometry.axisymmetric else (3.0 * r, 0.0)
+    outer = sides["outer"]
+    surface = _domain_surface(occ, DomainSpec("circle", radius=r), geometry.axisymmetric)
+    occ.translate([(2, surface)], offset[0], offset[1], 0.0)
+    centre = None if geometry.axisymmetric else occ.addPoint(offset[0], offset[1], 0.0)
+    occ.synchronize()
+    curves = [abs(t) for _, t in gmsh.model.getBoundary([(2, surface)], oriented=False)]
+    arc, axis = [], []
+    for tag in curves:
+        a, _, _, c, _, _ = gmsh.model.getBoundingBox(1, tag)
+        (axis if geometry.axisymmetric and c - a < 1e-9 * r and abs(a) < 1e-9 * r else arc).append(tag)
+    if len(arc) != len(outer):
+        raise MeshError("open boundary: regions must not touch the domain's circle")
+    matched = []
+    for tag in outer:  # pair each domain arc with its translated copy by their centres
+        bb = np.array(gmsh.model.getBoundingBox(1, tag))
+        best = min(arc, key=lambda t: np.abs(np.array(gmsh.model.getBoundingBox(1, t))
+                                             - bb - [*offset, 0, *offset, 0]).sum())
+        matched.append(best)
+    shift = [1, 0, 0, offset[0], 0, 1, 0, offset[1], 0, 0, 1, 0, 0, 0, 0, 1]
+    gmsh.model.mesh.setPeriodic(1, matched, outer, shift)
+    if centre is not None:
+        gmsh.model.mesh.embed(0, [centre], 2, surface)
+    owners["exterior"] = [surface]
+    sides["exterior-arc"] = matched
+    if axis:
+        sides["exterior-axis"] = axis
+    return offset
+
+
+def _kelvin_map(tagged: TaggedMesh, geometry: Geometry, offset) -> KelvinMap:
+    scale = geometry.unit_m
+    p = tagged.mesh.p
+    centre = int(np.argmin((p[0] - offset[0] * scale) ** 2 + (p[1] - offset[1] * scale) ** 2))
+    return KelvinMap(geometry.domain.radius * scale, (offset[0] * scale, offset[1] * scale),
+                     centre)
+
+
 def _physical_groups(geometry, owners, sides):
     names = [r.name for r in geometry.regions] + [BACKGROUND]
+    names += [n for n in owners if n not in names]
     for tag, name in enumerate(names, start=1):
         if owners[name]:
             gmsh.model.addPhysicalGroup(2, owners[name], tag, name=name)
@@ -242,31 +293,37 @@ def _physical_groups(geometry, owners, sides):
 
 
 def _size_fields(geometry: Geometry, plan: SizingPlan, owners):
+    """Background size field; regions of equal sizes share fields (fewer evaluations)."""
     field = gmsh.model.mesh.field
-    fields = []
+    graded, capped = {}, {}
     for sizing in plan.regions:
-        surfaces = [(2, t) for t in owners[sizing.name]]
+        surfaces = owners[sizing.name]
         if sizing.surface < plan.max_size:
-            curves = sorted({abs(t) for _, t in gmsh.model.getBoundary(surfaces, combined=True)})
-            longest = max(gmsh.model.occ.getMass(1, c) for c in curves)
-            samples = min(int(math.ceil(2.0 * longest / sizing.surface)) + 2, 200000)
-            dist = field.add("Distance")
-            field.setNumbers(dist, "CurvesList", curves)
-            field.setNumber(dist, "Sampling", samples)
-            grade = field.add("Threshold")
-            field.setNumber(grade, "InField", dist)
-            field.setNumber(grade, "SizeMin", sizing.surface)
-            field.setNumber(grade, "SizeMax", plan.max_size)
-            field.setNumber(grade, "DistMin", 0.0)
-            field.setNumber(grade, "DistMax", plan.grading_distance(sizing.surface))
-            fields.append(grade)
+            boundary = gmsh.model.getBoundary([(2, t) for t in surfaces], combined=True)
+            graded.setdefault(sizing.surface, set()).update(abs(t) for _, t in boundary)
         if sizing.interior < plan.max_size:
-            cap = field.add("Constant")
-            field.setNumber(cap, "VIn", sizing.interior)
-            field.setNumber(cap, "VOut", plan.max_size)
-            field.setNumbers(cap, "SurfacesList", [t for _, t in surfaces])
-            field.setNumber(cap, "IncludeBoundary", 1)
-            fields.append(cap)
+            capped.setdefault(sizing.interior, []).extend(surfaces)
+    fields = []
+    for surface, curves in sorted(graded.items()):
+        curves = sorted(curves)
+        longest = max(gmsh.model.occ.getMass(1, c) for c in curves)
+        dist = field.add("Distance")
+        field.setNumbers(dist, "CurvesList", curves)
+        field.setNumber(dist, "Sampling", min(int(math.ceil(2.0 * longest / surface)) + 2, 200000))
+        grade = field.add("Threshold")
+        field.setNumber(grade, "InField", dist)
+        field.setNumber(grade, "SizeMin", surface)
+        field.setNumber(grade, "SizeMax", plan.max_size)
+        field.setNumber(grade, "DistMin", 0.0)
+        field.setNumber(grade, "DistMax", plan.grading_distance(surface))
+        fields.append(grade)
+    for interior, surfaces in sorted(capped.items()):
+        cap = field.add("Constant")
+        field.setNumber(cap, "VIn", interior)
+        field.setNumber(cap, "VOut", plan.max_size)
+        field.setNumbers(cap, "SurfacesList", surfaces)
+        field.setNumber(cap, "IncludeBoundary", 1)
+        fields.append(cap)
     if not fields:
         return
     low = field.add("Min")
@@ -304,6 +361,7 @@ def _to_skfem(geometry: Geometry, owners, sides) -> TaggedMesh:
         boundaries[name] = _facet_indices(mesh, pairs, name)
     ordered = {r.name: subdomains[r.name] for r in geometry.regions}
     ordered[BACKGROUND] = subdomains[BACKGROUND]
+    ordered.update({n: v for n, v in subdomains.items() if n not in ordered})
     mesh = mesh.with_subdomains(ordered).with_boundaries(boundaries)
     return TaggedMesh(mesh, tuple(r.name for r in geometry.regions), geometry.unit_m,
                       geometry.axisymmetric, BACKGROUND)

@@ -47,6 +47,7 @@ class DomainSpec:
     size: tuple[float, float] | None = None
     radius: float | None = None
     mesh_size: float | None = None
+    open_boundary: bool = False  # circle only: add the exterior disk (Kelvin transformation)
 
     def sides(self, axisymmetric: bool) -> tuple[str, ...]:
         if self.shape == "circle":

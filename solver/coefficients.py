@@ -11,6 +11,9 @@ def element_regions(problem) -> dict[str, np.ndarray]:
     """Element indices of the background and of every region."""
     mesh = problem.mesh
     out = {mesh.background: mesh.elements(mesh.background)}
+    if mesh.kelvin is not None:  # the exterior disk is the background material too
+        out[mesh.background] = np.concatenate([out[mesh.background],
+                                               mesh.elements(mesh.kelvin.subdomain)])
     out.update({r: mesh.elements(r) for r in mesh.regions})
     return out
 
