@@ -42,6 +42,17 @@ class RunOutcome:
     solutions: list = field(default_factory=list)
 
 
+def loop_description(loop, unit_m) -> dict:
+    """A LoopSpec in metres, as postprocess.records expects it."""
+    out = {"name": loop.name, "turns": loop.turns}
+    if loop.at is not None:
+        out["at"] = (loop.at[0] * unit_m, loop.at[1] * unit_m)
+    else:
+        out["start"] = (loop.start[0] * unit_m, loop.start[1] * unit_m)
+        out["end"] = (loop.end[0] * unit_m, loop.end[1] * unit_m)
+    return out
+
+
 def solve_case(case, progress=None, mesh=None):
     """Mesh (unless ``mesh`` is given) and solve ``case``; returns (results, solutions, mesh)."""
     say = progress or (lambda message: None)
@@ -59,7 +70,8 @@ def solve_case(case, progress=None, mesh=None):
     say("postprocessing")
     t1 = time.perf_counter()
     points = {p.name: (p.at[0] * case.unit_m, p.at[1] * case.unit_m) for p in case.points}
-    records = [solution_record(s, points) for s in solutions]
+    loops = [loop_description(loop, case.unit_m) for loop in case.loops]
+    records = [solution_record(s, points, loops) for s in solutions]
     timing["postprocess"] = time.perf_counter() - t1
     timing["total"] = time.perf_counter() - t0
     system = solutions[0].system

@@ -27,15 +27,25 @@ class Probe:
     inside: np.ndarray
 
 
-def _locate(basis, points):
-    """Element of every point (-1 outside) without raising."""
+def _locate(basis, points, exclude=None):
+    """Element of every point (-1 outside, or inside an element listed in ``exclude``)."""
     finder = basis.mesh.element_finder(mapping=basis.mapping)
+    try:
+        cells = np.asarray(finder(points[0], points[1]), dtype=np.int64)
+    except ValueError:  # some point is outside: find them one by one
+        cells = None
+    if cells is not None:
+        if exclude is not None:
+            cells[np.isin(cells, exclude)] = -1
+        return cells
     cells = np.full(points.shape[1], -1, dtype=np.int64)
     for k in range(points.shape[1]):
         try:
             cells[k] = finder(points[0, k:k + 1], points[1, k:k + 1])[0]
         except ValueError:
             cells[k] = -1
+    if exclude is not None:
+        cells[np.isin(cells, exclude)] = -1
     return cells
 
 
@@ -45,7 +55,9 @@ def probe(solution, points_m) -> Probe:
     basis, form = system.basis, system.form
     points = np.asarray(points_m, dtype=float).reshape(2, -1)
     npts = points.shape[1]
-    cells = _locate(basis, points)
+    kelvin = solution.problem.mesh.kelvin
+    exclude = solution.problem.mesh.elements(kelvin.subdomain) if kelvin else None
+    cells = _locate(basis, points, exclude)
     inside = cells >= 0
     a = np.full(npts, np.nan, dtype=complex)
     grad = np.full((2, npts), np.nan, dtype=complex)

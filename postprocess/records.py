@@ -14,8 +14,11 @@ import numpy as np
 from whorl.postprocess.balance import TOLERANCE, power_balance
 from whorl.postprocess.circuits import source_results
 from whorl.postprocess.fields import quadrature_fields
+from whorl.postprocess.forces import shell_force
+from whorl.postprocess.loops import axisymmetric_loop, planar_loop
 from whorl.postprocess.probes import probe
 from whorl.postprocess.regions import region_totals
+from whorl.solver.sources import Stranded
 
 
 log = logging.getLogger(__name__)
@@ -40,7 +43,10 @@ def region_record(t) -> dict:
     }
 
 
-def source_record(s) -> dict:
+def source_record(s, omega) -> dict:
+    z = complex(s.impedance_ohm)
+    apparent = abs(complex(s.power_w, s.reactive_power_var))
+    x = z.imag
     return {
         "current_a": pair(s.current_a),
         "voltage_v": pair(s.voltage_v),
@@ -50,6 +56,11 @@ def source_record(s) -> dict:
         "power_w": s.power_w,
         "reactive_power_var": s.reactive_power_var,
         "flux_linkage_wb": pair(s.flux_linkage_wb),
+        "power_factor": s.power_w / apparent if apparent > 0 else None,
+        # Capacitance that resonates with the source at this frequency: in series
+        # (1 / (omega X)) and across the terminals (X / (omega |Z|^2)); None if not inductive.
+        "tuning_capacitance_series_f": 1 / (omega * x) if omega > 0 and x > 0 else None,
+        "tuning_capacitance_parallel_f": x / (omega * abs(z) ** 2) if omega > 0 and x > 0 else None,
     }
 
 
@@ -65,10 +76,42 @@ def point_record(p, k: int) -> dict:
     }
 
 
-def solution_record(solution, points=None) -> dict:
+def loop_record(lp) -> dict:
+    return {"turns": lp.turns, "flux_wb": pair(lp.flux_wb), "flux_from_b_wb": pair(lp.flux_from_b_wb),
+            "emf_v": pair(lp.emf_v), "emf_from_e_v": pair(lp.emf_from_e_v)}
+
+
+def loop_result(solution, loop: dict):
+    """``loop``: name, turns and ``at`` (axisymmetric) or ``start``/``end`` (planar), metres."""
+    if solution.problem.axisymmetric:
+        return axisymmetric_loop(solution, loop["name"], *loop["at"], loop.get("turns", 1.0))
+    return planar_loop(solution, loop["name"], loop["start"], loop["end"], loop.get("turns", 1.0))
+
+
+def derived_numbers(solution, regions, sources) -> dict:
+    """Skin depths, heating efficiency: numbers an engineer asks for next."""
+    problem = solution.problem
+    skin = {}
+    for name in problem.mesh.regions:
+        m = problem.materials[name]
+        if m.conductivity > 0 and solution.frequency_hz > 0:
+            skin[name] = m.skin_depth(solution.frequency_hz)
+    fed = {r for s in problem.sources for r in (*getattr(s, "regions", ()),
+                                                 *getattr(s, "return_regions", ()))}
+    work = sum(t.loss_w for n, t in regions.items() if n not in fed)
+    winding = sum(s.resistance * abs(solution.source_current(s)) ** 2
+                  for s in problem.sources if isinstance(s, Stranded))
+    total = sum(t.loss_w for t in regions.values()) + winding
+    return {"skin_depth_m": skin,
+            "heating_efficiency": work / total if total > 0 else None,
+            "loss_in_unsourced_conductors_w": work}
+
+
+def solution_record(solution, points=None, loops=None) -> dict:
     """The ``solutions[i]`` entry of results.json.
 
-    ``points`` maps a point name to its coordinates in metres.
+    ``points`` maps a point name to its coordinates in metres; ``loops`` is a list
+    of loop descriptions in metres (see :func:`loop_result`).
     """
     fields = quadrature_fields(solution)
     regions = region_totals(solution, fields)
@@ -81,8 +124,8 @@ def solution_record(solution, points=None) -> dict:
     record = {
         "frequency_hz": solution.frequency_hz,
         "regions": {name: region_record(t) for name, t in regions.items()},
-        "sources": {name: source_record(s) for name, s in sources.items()},
-        "loops": {},
+        "sources": {name: source_record(s, solution.omega) for name, s in sources.items()},
+        "loops": {lp["name"]: loop_record(loop_result(solution, lp)) for lp in loops or ()},
         "points": {},
         "totals": {
             "loss_w": float(sum(t.loss_w for t in regions.values())),
@@ -90,7 +133,11 @@ def solution_record(solution, points=None) -> dict:
             "winding_loss_w": balance["winding_loss_w"],
             "power_balance": balance,
         },
+        "derived": derived_numbers(solution, regions, sources),
     }
+    for name in solution.problem.mesh.regions:
+        force = shell_force(solution, name, fields)
+        record["regions"][name]["force_maxwell_n"] = list(force) if force else None
     if points:
         names = list(points)
         xy = np.array([points[n] for n in names], dtype=float).T
