@@ -253,7 +253,8 @@ def _exterior_disk(geometry: Geometry, owners, sides):
     arc, axis = [], []
     for tag in curves:
         a, _, _, c, _, _ = gmsh.model.getBoundingBox(1, tag)
-        (axis if geometry.axisymmetric and c - a < 1e-9 * r and abs(a) < 1e-9 * r else arc).append(tag)
+        on_axis = geometry.axisymmetric and c - a < 1e-6 * r and abs(a) < 1e-6 * r
+        (axis if on_axis else arc).append(tag)
     if len(arc) != len(outer):
         raise MeshError("open boundary: regions must not touch the domain's circle")
     matched = []
