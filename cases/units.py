@@ -117,13 +117,15 @@ def to_unit(value, kind: str, key: str, unit: str | None = None) -> float:
     spec = KINDS[kind]
     target = spec.unit if unit is None else unit
     if isinstance(value, bool):
-        raise CaseError(key, f"expected a {spec.label} such as {spec.example!r}, got {value!r}")
+        raise CaseError(key, f"expected {_article(spec.label)} such as {spec.example!r}, "
+                             f"got {value!r}")
     if isinstance(value, int | float):
         number = float(value)
     elif isinstance(value, Quantity):
         number = _convert(value, kind, spec, target, key)
     else:
-        raise CaseError(key, f"expected a {spec.label} such as {spec.example!r}, got {value!r}")
+        raise CaseError(key, f"expected {_article(spec.label)} such as {spec.example!r}, "
+                             f"got {value!r}")
     if not math.isfinite(number):
         raise CaseError(key, f"the value is not finite ({number})")
     return number
@@ -139,11 +141,15 @@ def _convert(q, kind: str, spec: Kind, target: str, key: str) -> float:
             return float(q.to("dimensionless").magnitude)
         wanted = Quantity(1.0, target)
         if q.dimensionality != wanted.dimensionality:
-            raise CaseError(key, f"expected a {spec.label} such as {spec.example!r}, "
+            raise CaseError(key, f"expected {_article(spec.label)} such as {spec.example!r}, "
                                  f"got {describe(q)}")
         return float(q.to(target).magnitude)
     except pint.errors.PintError as exc:
         raise CaseError(key, f"cannot convert {describe(q)} to {target}: {exc}") from None
+
+
+def _article(label: str) -> str:
+    return f"{'an' if label[0] in 'aeiou' else 'a'} {label}"
 
 
 def describe(q) -> str:
@@ -168,3 +174,13 @@ def is_unit(name: str) -> bool:
     except (pint.errors.PintError, ValueError, TypeError, AttributeError, SyntaxError):
         return False
     return True
+
+
+def quantity_text(magnitude: float, units) -> str:
+    """A quantity as text that :mod:`whorl.cases.expressions` reads back exactly.
+
+    Units are written as a product of powers (``"5.0 second**-1"``,
+    ``"58.0 megasiemens*meter**-1"``), never with a leading ``1/``.
+    """
+    parts = [name if exp == 1 else f"{name}**{exp:g}" for name, exp in units._units.items()]
+    return f"{magnitude!r} {'*'.join(parts)}" if parts else repr(magnitude)

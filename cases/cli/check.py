@@ -1,0 +1,128 @@
+"""``whorl check CASE``: validate a case file without solving and show what it holds."""
+
+from __future__ import annotations
+
+from whorl.cases.loader import load_case
+from whorl.cases.parameters import parse_set_args
+from whorl.cases.read_sweep import sweep_size
+
+HELP = "validate a case file without solving; print what it contains"
+
+
+def add_args(parser) -> None:
+    parser.add_argument("case", metavar="CASE", help="case file (TOML)")
+    parser.add_argument("--set", dest="overrides", action="append", default=[],
+                        metavar="NAME=VALUE", help="override a parameter (repeatable)")
+
+
+def handle(args) -> int:
+    case = load_case(args.case, parse_set_args(args.overrides))
+    for line in summary(case):
+        print(line)
+    return 0
+
+
+def _shape(shape) -> str:
+    kind = getattr(shape, "kind", type(shape).__name__.lower())
+    if kind == "rectangle":
+        return f"rectangle corner {_xy(shape.corner)} size {_xy(shape.size)}"
+    if kind == "circle":
+        return f"circle center {_xy(shape.center)} radius {shape.radius:g}"
+    if kind == "ring":
+        return f"ring center {_xy(shape.center)} radii {shape.inner:g} to {shape.outer:g}"
+    return f"polygon of {len(shape.points)} points"
+
+
+def _xy(p) -> str:
+    return f"({p[0]:g}, {p[1]:g})"
+
+
+def _phasor(z) -> str:
+    import cmath
+    import math
+    magnitude, angle = abs(z), math.degrees(cmath.phase(z))
+    return f"{magnitude:g}" + (f" at {angle:g} deg" if abs(angle) > 1e-12 else "")
+
+
+def _source(s) -> str:
+    if s.kind == "applied-field":
+        b = s.flux_density
+        text = (f"B = ({_phasor(b[0])}, {_phasor(b[1])}) T" if isinstance(b, tuple)
+                else f"Bz = {_phasor(b)} T")
+        return f"applied-field, {text} RMS"
+    regions = ", ".join(_compact(s.regions))
+    if s.current is not None:
+        drive = f"current {_phasor(s.current)} A RMS"
+    elif s.voltage is not None:
+        drive = f"voltage {_phasor(s.voltage)} V RMS"
+    else:
+        drive = "waveform (transient)"
+    extra = (f", {s.turns:g} turns, {s.resistance:g} ohm" if s.kind == "stranded"
+             else f", {s.connection}")
+    back = f", return {', '.join(_compact(s.return_regions))}" if s.return_regions else ""
+    return f"{s.kind}{extra}, {drive}, regions {regions}{back}"
+
+
+def _compact(names) -> list[str]:
+    """``turn.1 ... turn.8`` shown as ``turn.1..8``."""
+    out, i, names = [], 0, list(names)
+    while i < len(names):
+        stem, _, num = names[i].rpartition(".")
+        j = i
+        while (num.isdigit() and j + 1 < len(names)
+               and names[j + 1] == f"{stem}.{int(num) + j + 1 - i}"):
+            j += 1
+        out.append(names[i] if j == i else f"{names[i]}..{int(num) + j - i}")
+        i = j + 1
+    return out
+
+
+def summary(case) -> list[str]:
+    """Lines describing a loaded case."""
+    g = case.geometry
+    lines = [f"case {case.name}: {case.title}"]
+    if case.path:
+        lines.append(f"  file       {case.path}")
+    depth = "" if case.axisymmetric else f", depth {case.depth_m:g} m"
+    lines.append(f"  model      {case.geometry_kind}, length unit {case.length_unit} "
+                 f"({case.unit_m:g} m){depth}, order {case.order}")
+    if case.parameters:
+        lines.append("  parameters " + ", ".join(f"{k} = {v:g}" for k, v in
+                                                 case.parameters.items()) + " (SI)")
+    lines.append(f"  regions    {len(g.regions)}")
+    width = max(len(r.name) for r in g.regions)
+    for r in g.regions:
+        size = f", mesh size {r.mesh_size:g}" if r.mesh_size else ""
+        lines.append(f"    {r.name:<{width}}  {case.region_material[r.name]:<14} "
+                     f"{_shape(r.shape)}{size}")
+    d = g.domain
+    where = (f"radius {d.radius:g}" if d.shape == "circle"
+             else f"corner {_xy(d.corner)} size {_xy(d.size)}")
+    lines.append(f"  domain     {d.shape} {where}, material {case.region_material['domain']}")
+    if case.boundary:
+        lines.append("  boundary   " + ", ".join(f"{side} {cond.kind}" for side, cond in
+                                                 case.boundary.items()))
+    lines.append("  materials  " + ", ".join(
+        f"{m.name} ({m.conductivity:.4g} S/m, mu_r {m.relative_permeability:g})"
+        for m in case.materials.values()))
+    for s in case.sources:
+        lines.append(f"  source     {s.name}: {_source(s)}")
+    for group in case.shorted:
+        lines.append(f"  shorted    {', '.join(group.regions)}")
+    st = case.study
+    if st.kind == "transient":
+        lines.append(f"  study      transient to {st.end_s:g} s in steps of {st.step_s:g} s "
+                     f"({st.scheme}, fields every {st.save_every} steps)")
+    else:
+        lines.append(f"  study      {st.kind} at " + ", ".join(f"{f:g}" for f in
+                                                              st.frequencies) + " Hz")
+    outputs = [f"{len(case.loops)} loops", f"{len(case.lines)} lines",
+               f"{len(case.points)} points"]
+    lines.append(f"  outputs    {', '.join(outputs)}; folder {case.output.folder}; "
+                 f"fields {'yes' if case.output.fields else 'no'}, "
+                 f"plots {'yes' if case.output.plots else 'no'}")
+    if case.sweep is not None:
+        axes = " x ".join(f"{name} ({len(v)})" for name, v in case.sweep.axes.items())
+        lines.append(f"  sweep      {case.sweep.mode}: {axes} = {sweep_size(case.sweep)} points")
+    lines.append("ok: the case is valid")
+    return lines

@@ -1,0 +1,43 @@
+"""``whorl materials``: the built-in materials with their values and sources."""
+
+from __future__ import annotations
+
+import textwrap
+
+from whorl.solver.materials import BUILTIN
+
+HELP = "list the built-in materials with their values and where they come from"
+
+
+def add_args(parser) -> None:
+    parser.add_argument("--width", type=int, default=100,
+                        help="wrap the source column to this many characters (default 100)")
+
+
+def rows() -> list[tuple[str, str, str, str, str]]:
+    """One row per built-in material: name, S/m, ohm*m, mu_r, source."""
+    out = []
+    for m in BUILTIN.values():
+        sigma = f"{m.conductivity:.4g}" if m.conductivity > 0 else "0"
+        rho = f"{1 / m.conductivity:.4g}" if m.conductivity > 0 else "-"
+        out.append((m.name, sigma, rho, f"{m.relative_permeability:g}", m.source))
+    return out
+
+
+def handle(args) -> int:
+    header = ("name", "conductivity S/m", "resistivity ohm*m", "mu_r", "source")
+    table = rows()
+    widths = [max(len(r[i]) for r in table + [header]) for i in range(4)]
+    indent = sum(widths) + 2 * 4
+    wrap = max(30, args.width - indent)
+    print("  ".join(h.ljust(w) for h, w in zip(header[:4], widths, strict=True))
+          + "  " + header[4])
+    for r in table:
+        first, *rest = textwrap.wrap(r[4], wrap) or [""]
+        print("  ".join(v.ljust(w) if i == 0 else v.rjust(w)
+                        for i, (v, w) in enumerate(zip(r[:4], widths, strict=True)))
+              + "  " + first)
+        for more in rest:
+            print(" " * indent + more)
+    print("\nValues at 20 degC, linear. Define your own with [material.NAME] in a case file.")
+    return 0

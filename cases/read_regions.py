@@ -1,0 +1,168 @@
+"""The ``[[region]]`` tables: shapes, repeats and names (length unit throughout)."""
+
+from __future__ import annotations
+
+import re
+from dataclasses import dataclass
+
+from whorl.cases.errors import CaseError
+from whorl.cases.reader import Context, Table, array_of_tables
+from whorl.meshes.geometry import RegionSpec
+from whorl.meshes.shapes import SHAPES, Circle, Polygon, Rectangle, Ring
+
+NAME = re.compile(r"^[A-Za-z0-9_][A-Za-z0-9_.-]*$")
+RESERVED = ("domain",)
+COMMON = {"name", "material", "shape", "mesh_size", "repeat"}
+SHAPE_KEYS = {
+    "rectangle": {"corner", "size"},
+    "circle": {"center", "radius"},
+    "ring": {"center", "inner", "outer"},
+    "polygon": {"points"},
+}
+
+
+@dataclass(frozen=True)
+class RegionEntry:
+    """A region as read: its spec, material name and the table it came from."""
+
+    spec: RegionSpec
+    material: str
+    table: Table
+
+
+def read_regions(ctx: Context, document: dict) -> list[RegionEntry]:
+    """Every region, repeats expanded (``NAME.1 ... NAME.n``), in file order."""
+    entries: list[RegionEntry] = []
+    seen: dict[str, str] = {}
+    tables = array_of_tables(ctx, document, "region")
+    if not tables:
+        raise CaseError("region", "the model has no regions: add at least one [[region]]")
+    for table in tables:
+        for entry in _read_one(ctx, table):
+            name = entry.spec.name
+            if name in seen:
+                raise table.error("name", f"region name {name!r} is used twice "
+                                          f"(also by {seen[name]})")
+            seen[name] = table.path
+            entries.append(entry)
+    return entries
+
+
+def _read_one(ctx: Context, table: Table) -> list[RegionEntry]:
+    shape_name = table.string("shape", choices=tuple(SHAPES))
+    extra = SHAPE_KEYS.get(shape_name, set())
+    others = set().union(*SHAPE_KEYS.values()) - extra
+    for key in table.data:
+        if key in others:
+            raise table.error(key, f"{key!r} does not belong to a {shape_name} (it takes "
+                                   f"{', '.join(sorted(extra))})")
+    table.allow(COMMON | extra, required=("name", "material") + tuple(sorted(extra)))
+    name = table.string("name")
+    if not NAME.match(name) or name in RESERVED:
+        raise table.error("name", f"{name!r} is not a valid region name: use letters, digits, "
+                                  "-, _ and . (and not 'domain')")
+    material = table.string("material")
+    mesh_size = table.positive("mesh_size", "length", None, geometry=True)
+    shape = _SHAPE_READERS[shape_name](table)
+    if not table.has("repeat"):
+        copies = [(name, shape)]
+    else:
+        count, step = _repeat(table)
+        copies = [(f"{name}.{k + 1}", shifted(shape, k * step[0], k * step[1]))
+                  for k in range(count)]
+    out = []
+    for copy_name, copy_shape in copies:
+        if ctx.axisymmetric and copy_shape.bbox()[0] < -1e-12 * _extent(copy_shape):
+            raise table.error(None, f"region {copy_name!r} reaches r = "
+                                    f"{copy_shape.bbox()[0]:g} {ctx.length_unit} < 0: in an "
+                                    "axisymmetric model every region lies at r >= 0")
+        out.append(RegionEntry(RegionSpec(copy_name, copy_shape, mesh_size), material, table))
+    return out
+
+
+def _extent(shape) -> float:
+    x0, y0, x1, y1 = shape.bbox()
+    return max(abs(x0), abs(x1), abs(y0), abs(y1), x1 - x0, y1 - y0)
+
+
+def _repeat(table: Table) -> tuple[int, tuple[float, float]]:
+    rep = table.table("repeat")
+    rep.allow({"count", "step"}, required=("count", "step"))
+    count = rep.integer("count", minimum=1)
+    return count, rep.point("step")
+
+
+def _rectangle(table: Table) -> Rectangle:
+    corner = table.point("corner")
+    size = table.point("size")
+    for i, s in enumerate(size, start=1):
+        if s <= 0:
+            raise table.error(f"size[{i}]", f"sizes must be > 0, got {s:g}")
+    return Rectangle(corner, size)
+
+
+def _circle(table: Table) -> Circle:
+    return Circle(table.point("center"), table.positive("radius", "length", geometry=True))
+
+
+def _ring(table: Table) -> Ring:
+    center = table.point("center")
+    inner = table.positive("inner", "length", geometry=True)
+    outer = table.positive("outer", "length", geometry=True)
+    if inner >= outer:
+        raise table.error("inner", f"the inner radius ({inner:g}) must be less than the "
+                                   f"outer radius ({outer:g})")
+    return Ring(center, inner, outer)
+
+
+def _polygon(table: Table) -> Polygon:
+    raw = table.raw("points")
+    if not isinstance(raw, list) or len(raw) < 3:
+        raise table.error("points", "a polygon needs a list of at least 3 points [[x, y], ...]")
+    points = []
+    for i, p in enumerate(raw, start=1):
+        if not isinstance(p, list) or len(p) != 2:
+            raise table.error(f"points[{i}]", f"expected a point [x, y], got {p!r}")
+        points.append(tuple(table.convert(v, f"{table.key('points')}[{i}][{j}]", "length",
+                                          True, "points") for j, v in enumerate(p, start=1)))
+    polygon = Polygon(tuple(points))
+    if polygon.area() <= 1e-12 * _extent(polygon) ** 2:
+        raise table.error("points", "the polygon has no area (all points on one line?)")
+    return polygon
+
+
+_SHAPE_READERS = {"rectangle": _rectangle, "circle": _circle, "ring": _ring,
+                  "polygon": _polygon}
+
+
+def shifted(shape, dx: float, dy: float):
+    """A copy of ``shape`` moved by (dx, dy)."""
+    if isinstance(shape, Rectangle):
+        return Rectangle((shape.corner[0] + dx, shape.corner[1] + dy), shape.size)
+    if isinstance(shape, Circle):
+        return Circle((shape.center[0] + dx, shape.center[1] + dy), shape.radius)
+    if isinstance(shape, Ring):
+        return Ring((shape.center[0] + dx, shape.center[1] + dy), shape.inner, shape.outer)
+    return Polygon(tuple((x + dx, y + dy) for x, y in shape.points))
+
+
+def expand(patterns: list[str], regions: list[str], table: Table, key: str) -> tuple[str, ...]:
+    """Region names from a list that may use a trailing ``*`` (``"turn.*"``).
+
+    Every entry must match at least one region; duplicates are dropped.
+    """
+    out: list[str] = []
+    for i, pattern in enumerate(patterns, start=1):
+        if "*" in pattern[:-1] or "?" in pattern or "[" in pattern:
+            raise table.error(f"{key}[{i}]", f"{pattern!r}: only a trailing '*' is allowed")
+        matches = ([r for r in regions if r.startswith(pattern[:-1])] if pattern.endswith("*")
+                   else [pattern] if pattern in regions else [])
+        if not matches:
+            raise table.error(f"{key}[{i}]", f"no region matches {pattern!r} (regions: "
+                                             f"{_listing(regions)})")
+        out.extend(m for m in matches if m not in out)
+    return tuple(out)
+
+
+def _listing(names: list[str]) -> str:
+    return ", ".join(names) if len(names) <= 12 else ", ".join(names[:12]) + ", ..."
