@@ -29,10 +29,11 @@ class SourceResult:
     reactive_power_var: float
 
 
-def flux_linkage(solution, source) -> complex:
-    """Flux linkage of a source (Wb-turns); for massive sources the DC-weighted mean."""
+def flux_linkage(solution, source, a=None) -> complex:
+    """Flux linkage of a source (Wb-turns); for massive sources the DC-weighted mean.
+    ``a`` replaces the solution's A (pass dA/dt for the rate of flux linkage)."""
     system = solution.system
-    a = solution.a
+    a = solution.a if a is None else a
     if isinstance(source, Stranded):
         return complex(system.kappa * system.stranded_load[source.name] @ a)
     # Massive: (1/I) int A J_dc dV with the DC current distribution of each branch.
@@ -48,7 +49,7 @@ def terminal_voltage(solution, source) -> complex:
     system = solution.system
     current = solution.source_current(source)
     if isinstance(source, Stranded):
-        return 1j * solution.omega * flux_linkage(solution, source) + source.resistance * current
+        return flux_linkage(solution, source, solution.a_rate) + source.resistance * current
     u = solution.branch_u
     return complex(sum(br.sign * system.kappa * u[i]
                        for i, br in enumerate(system.branches) if br.source == source.name))

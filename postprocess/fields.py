@@ -67,11 +67,12 @@ def quadrature_fields(solution) -> QuadratureFields:
     basis, form = system.basis, system.form
     x = basis.mapping.F(basis.X)  # (2, E, Q)
     a, grad_a = interpolate_complex(basis, solution.a)
+    a_rate, _ = interpolate_complex(basis, solution.a_rate)
     bx, by = form.flux_density(a, grad_a, x)
     b = np.array([bx, by])
     u, js = element_sources(solution)
     sigma = system.sigma[:, None]
-    e = -1j * solution.omega * a + form.voltage_field(u[:, None], x) * (sigma > 0)
+    e = -a_rate + form.voltage_field(u[:, None], x) * (sigma > 0)
     j = sigma * e + js[:, None]
     loss = sigma * np.abs(e) ** 2  # |J|^2 / sigma where eddy currents flow, 0 elsewhere
     energy = 0.5 * system.nu_q * (np.abs(b[0]) ** 2 + np.abs(b[1]) ** 2)

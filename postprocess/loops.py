@@ -5,7 +5,7 @@ Four numbers per loop, which must agree where the contour lies in air
 
 - ``flux_wb``: from A, the circulation of A around the contour;
 - ``flux_from_b_wb``: B integrated over a surface the contour bounds;
-- ``emf_v``: -j omega turns flux;
+- ``emf_v``: -turns d(flux)/dt, that is -j omega turns flux for phasors;
 - ``emf_from_e_v``: the circulation of E, turns times, which in a massive
   conductor includes its electrostatic part (the applied voltage term).
 
@@ -59,9 +59,8 @@ def axisymmetric_loop(solution, name, r, z, turns=1.0) -> LoopResult:
     disk = probe(solution, np.array([rr, np.full_like(rr, z)]))
     flux_b = np.sum(disk.b[1] * 2 * np.pi * rr * w)
     emf_e = 2 * np.pi * r * at.e[0]
-    omega = solution.omega
-    return LoopResult(name, turns, turns * flux, turns * flux_b, -1j * omega * turns * flux,
-                      turns * emf_e)
+    emf = -2 * np.pi * r * at.a_rate[0]
+    return LoopResult(name, turns, turns * flux, turns * flux_b, turns * emf, turns * emf_e)
 
 
 def planar_loop(solution, name, start, end, turns=1.0) -> LoopResult:
@@ -78,6 +77,5 @@ def planar_loop(solution, name, start, end, turns=1.0) -> LoopResult:
     strip = probe(solution, pts)
     flux_b = depth * length * np.sum((strip.b[0] * normal[0] + strip.b[1] * normal[1]) * w)
     emf_e = depth * (ends.e[0] - ends.e[1])
-    omega = solution.omega
-    return LoopResult(name, turns, turns * flux, turns * flux_b, -1j * omega * turns * flux,
-                      turns * emf_e)
+    emf = -depth * (ends.a_rate[0] - ends.a_rate[1])
+    return LoopResult(name, turns, turns * flux, turns * flux_b, turns * emf, turns * emf_e)

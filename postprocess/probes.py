@@ -19,6 +19,7 @@ class Probe:
 
     x: np.ndarray
     a: np.ndarray
+    a_rate: np.ndarray  # dA/dt (j omega A for phasors), V/m
     b: np.ndarray
     h: np.ndarray
     e: np.ndarray
@@ -60,19 +61,23 @@ def probe(solution, points_m) -> Probe:
     cells = _locate(basis, points, exclude)
     inside = cells >= 0
     a = np.full(npts, np.nan, dtype=complex)
+    a_rate = np.full(npts, np.nan, dtype=complex)
     grad = np.full((2, npts), np.nan, dtype=complex)
     if inside.any():
         c = cells[inside]
         pts = basis.mapping.invF(points[:, inside, None], tind=c)
         dofs = basis.element_dofs[:, c]
         coeff = solution.a[dofs]  # (Nbfun, P)
+        coeff_rate = solution.a_rate[dofs]
         val = np.zeros(c.size, dtype=complex)
+        rate = np.zeros(c.size, dtype=complex)
         g = np.zeros((2, c.size), dtype=complex)
         for k in range(basis.Nbfun):
             phi = basis.elem.gbasis(basis.mapping, pts, k, tind=c)[0]
             val += coeff[k] * np.asarray(phi)[:, 0]
+            rate += coeff_rate[k] * np.asarray(phi)[:, 0]
             g += coeff[k] * phi.grad[:, :, 0]
-        a[inside], grad[:, inside] = val, g
+        a[inside], a_rate[inside], grad[:, inside] = val, rate, g
     x = points
     bx, by = form.flux_density(a, grad, x)
     b = np.array([bx, by])
@@ -80,10 +85,10 @@ def probe(solution, points_m) -> Probe:
     sigma = np.where(inside, system.sigma[np.maximum(cells, 0)], 0.0)
     u, js = element_sources(solution)
     cu = np.maximum(cells, 0)
-    e = -1j * solution.omega * a + np.where(sigma > 0, form.voltage_field(u[cu], x), 0)
+    e = -a_rate + np.where(sigma > 0, form.voltage_field(u[cu], x), 0)
     j = sigma * e + np.where(inside, js[cu], np.nan)
     loss = sigma * np.abs(e) ** 2
-    return Probe(points, a, b, nu * b, e, j, loss, inside)
+    return Probe(points, a, a_rate, b, nu * b, e, j, loss, inside)
 
 
 def line_points(start_m, end_m, samples: int) -> np.ndarray:

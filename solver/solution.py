@@ -6,10 +6,15 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from whorl.solver.sources import current_is_unknown
+
 
 @dataclass
 class Solution:
-    """The solution of one problem at one frequency.
+    """The solution of one problem at one frequency (or one instant of a transient).
+
+    For a transient state ``frequency_hz`` is 0, ``x`` holds instantaneous
+    values, ``x_rate`` their time derivative and ``time_s`` the instant.
 
     Attributes
     ----------
@@ -25,6 +30,18 @@ class Solution:
     system: object
     frequency_hz: float
     x: np.ndarray
+    x_rate: np.ndarray | None = None  # dx/dt of a transient state; None for phasors
+    time_s: float | None = None
+
+    @property
+    def rate(self) -> np.ndarray:
+        """dx/dt: j omega x for phasors, the stored derivative for a transient state."""
+        return self.x_rate if self.x_rate is not None else 1j * self.omega * self.x
+
+    @property
+    def a_rate(self) -> np.ndarray:
+        """dA/dt at the field dofs (V/m)."""
+        return self.rate[: self.system.n_field]
 
     @property
     def omega(self) -> float:
@@ -46,7 +63,7 @@ class Solution:
 
     def source_current(self, source) -> complex:
         """The RMS current phasor of a stranded or massive source (A)."""
-        if source.voltage is None:
+        if not current_is_unknown(source):
             return complex(source.current)
         k = self.system.driven.index(source)
         return complex(self.x[self.system.n_field + len(self.system.branches) + k])

@@ -9,6 +9,13 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 
+def current_is_unknown(source) -> bool:
+    """True for a source whose current the solver finds: voltage-driven, or fed by a capacitor."""
+    return (getattr(source, "voltage", None) is not None
+            or getattr(source, "drive", "current") == "voltage"
+            or getattr(source, "capacitance", None) is not None)
+
+
 @dataclass(frozen=True)
 class Stranded:
     """A winding of fine wire: uniform current density turns*I/area in each region.
@@ -16,6 +23,11 @@ class Stranded:
     ``turns`` is the number of turns in each listed region; all regions are in
     series. Exactly one of ``current`` (A, RMS phasor) and ``voltage`` (V) is
     given; ``resistance`` (ohm) is the DC winding resistance added in series.
+
+    Stepped (transient) studies use ``waveform`` instead (instantaneous A or V
+    as ``drive`` says). A ``capacitance`` (F) charged to ``initial_voltage``
+    (V) in series, with ``series_resistance`` (ohm), turns the source into a
+    capacitor discharge (its current is then an unknown).
     """
 
     name: str
@@ -26,6 +38,11 @@ class Stranded:
     resistance: float = 0.0
     return_regions: tuple[str, ...] = ()
     kind: str = "stranded"
+    waveform: object | None = None
+    drive: str = "current"
+    capacitance: float | None = None
+    initial_voltage: float = 0.0
+    series_resistance: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -34,7 +51,9 @@ class Massive:
 
     ``connection`` is ``"series"`` (each region carries the source current) or
     ``"parallel"`` (the regions share the terminal voltage). One of
-    ``current`` (A) and ``voltage`` (V) is given.
+    ``current`` (A) and ``voltage`` (V) is given; ``waveform``, ``drive``,
+    ``capacitance``, ``initial_voltage`` and ``series_resistance`` as for
+    :class:`Stranded`.
     """
 
     name: str
@@ -44,6 +63,11 @@ class Massive:
     voltage: complex | None = None
     return_regions: tuple[str, ...] = ()
     kind: str = "massive"
+    waveform: object | None = None
+    drive: str = "current"
+    capacitance: float | None = None
+    initial_voltage: float = 0.0
+    series_resistance: float = 0.0
 
 
 @dataclass(frozen=True)

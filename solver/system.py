@@ -1,20 +1,22 @@
 """Assemble the real matrices of a problem once; combine them per frequency.
 
 Unknowns, in order: the potential A at every finite-element dof (N), the
-voltage unknown u of every branch (see :mod:`.circuits`), and the current of
-every voltage-driven source. The full matrix at angular frequency omega is
+voltage unknown u of every branch (see :mod:`.circuits`), the current of
+every *driven* source (voltage-driven or capacitor-fed), and the voltage of
+every series capacitor. The system is
 
-    S(omega) = S0 + j omega S1
+    S0 x + S1 dx/dt = b(t),   and with phasors   (S0 + j omega S1) x = b
 
 with S0 and S1 real and assembled once, so a frequency list costs one
-factorisation per frequency and no reassembly.
+factorisation per frequency and no reassembly, and time stepping reuses them.
 
-Rows, with kappa = depth (planar) or 2 pi (axisymmetric):
+Rows, with kappa = depth (planar) or 2 pi (axisymmetric) and d/dt -> j omega:
 
-- field:    (K + j w M) A - sum_b c_b u_b - sum_s f_s I_s = sum_s' f_s' I_s'
-- branch b: -j w c_b^T A + G_b u_b - sign_b I_s(b) = sign_b I (current-driven) or 0
-- massive source s driven by voltage:   kappa sum_b sign_b u_b = V_s
-- stranded source s driven by voltage:  j w kappa f_s^T A + R_s I_s = V_s
+- field:    K A + M dA/dt - sum_b c_b u_b - sum_s f_s I_s = sum_s' f_s' i_s'(t)
+- branch b: -c_b^T dA/dt + G_b u_b - sign_b I_s(b) = sign_b i(t) (current-driven) or 0
+- driven massive source:   kappa sum_b sign_b u_b + R_ext I_s - v_C = v(t)
+- driven stranded source:  kappa f_s^T dA/dt + (R_s + R_ext) I_s - v_C = v(t)
+- series capacitor:        C dv_C/dt + I_s = 0   (v_C drives the current out of it)
 """
 
 from __future__ import annotations
@@ -31,7 +33,7 @@ from whorl.solver.circuits import Branch, branches
 from whorl.solver.coefficients import eddy_conductivity, reluctivity
 from whorl.solver.errors import SolveError
 from whorl.solver.kelvin import glue, reluctivity_factor
-from whorl.solver.sources import AppliedField, Massive, Stranded
+from whorl.solver.sources import AppliedField, Massive, Stranded, current_is_unknown
 
 ELEMENTS = {1: ElementTriP1, 2: ElementTriP2}
 
@@ -52,10 +54,11 @@ class System:
     sigma: np.ndarray
     kappa: float
     branches: tuple[Branch, ...]
-    driven: tuple  # voltage-driven sources, in unknown order
+    driven: tuple  # sources whose current is an unknown, in unknown order
     S0: sp.csr_matrix
     S1: sp.csr_matrix
     stranded_load: dict  # source name -> f_s (field rows, per ampere)
+    capacitors: tuple = ()  # driven sources with a series capacitor, in unknown order
     region_bases: dict = field(default_factory=dict)
     areas: dict = field(default_factory=dict)
     fixed: np.ndarray | None = None  # indices of fixed field dofs
@@ -76,19 +79,26 @@ class System:
     def matrix(self, omega: float) -> sp.csr_matrix:
         return (self.S0 + (1j * omega) * self.S1).tocsr()
 
-    def rhs(self, omega: float) -> np.ndarray:
-        """Right-hand side at omega (currents of current-driven sources, voltages)."""
-        b = np.zeros(self.size, dtype=complex)
+    def rhs(self, omega: float = 0.0) -> np.ndarray:
+        """Right-hand side of a harmonic solution (the sources' phasors)."""
+        return self.rhs_for({s.name: (s.voltage if current_is_unknown(s) else s.current)
+                             for s in self.problem.sources if isinstance(s, Massive | Stranded)})
+
+    def rhs_for(self, drive: dict) -> np.ndarray:
+        """Right-hand side for ``drive``: source name -> its current (current-driven)
+        or its voltage (driven sources; None or missing means 0 V)."""
+        dtype = complex if any(isinstance(v, complex) for v in drive.values()) else float
+        b = np.zeros(self.size, dtype=dtype)
         nf, nb = self.n_field, len(self.branches)
         for s in self.problem.sources:
-            if isinstance(s, Stranded) and s.voltage is None:
-                b[:nf] += s.current * self.stranded_load[s.name]
+            if isinstance(s, Stranded) and not current_is_unknown(s):
+                b[:nf] += drive.get(s.name, 0.0) * self.stranded_load[s.name]
         for i, br in enumerate(self.branches):
             src = self.source(br.source)
-            if src is not None and src.voltage is None:
-                b[nf + i] = br.sign * src.current
+            if src is not None and not current_is_unknown(src):
+                b[nf + i] = br.sign * drive.get(src.name, 0.0)
         for k, s in enumerate(self.driven):
-            b[nf + nb + k] = s.voltage
+            b[nf + nb + k] = drive.get(s.name) or 0.0
         return b
 
     def source(self, name):
@@ -133,9 +143,10 @@ def assemble(problem, progress=None) -> System:
     M = asm(form.conductor_mass, basis, sigma=_p0(basis, sigma))
     brs = branches(problem)
     driven = tuple(s for s in problem.sources
-                   if isinstance(s, Massive | Stranded) and s.voltage is not None)
+                   if isinstance(s, Massive | Stranded) and current_is_unknown(s))
+    caps = tuple(s for s in driven if s.capacitance is not None)
     system = System(problem, form, basis, nu, sigma, kappa, brs, driven,
-                    None, None, {})
+                    None, None, {}, caps)
 
     def region_vectors(region):
         rb = system.region_basis(region)
@@ -169,8 +180,11 @@ def assemble(problem, progress=None) -> System:
     system.nu_q = nu_q
     # Blocks of S0 (omega-free) and S1 (multiplied by j omega).
     C_sp = sp.csr_matrix(C)
-    S0 = [[K, -C_sp, None], [None, sp.diags(G), None], [None, None, None]]
-    S1 = [[M, None, None], [-C_sp.T, None, None], [None, None, None]]
+    nc = len(caps)
+    S0 = [[K, -C_sp, None, None], [None, sp.diags(G), None, None],
+          [None, None, None, None], [None, None, None, None]]
+    S1 = [[M, None, None, None], [-C_sp.T, None, None, None],
+          [None, None, None, None], [None, None, None, None]]
     if nd:
         FI = np.zeros((nf, nd))     # field rows, driven-current columns
         BI = np.zeros((nb, nd))     # branch rows, driven-current columns
@@ -178,10 +192,11 @@ def assemble(problem, progress=None) -> System:
         IA = np.zeros((nd, nf))     # driven rows, field columns (S1)
         RR = np.zeros(nd)
         for k, s in enumerate(driven):
+            RR[k] = s.series_resistance
             if isinstance(s, Stranded):
                 FI[:, k] = -system.stranded_load[s.name]
                 IA[k] = kappa * system.stranded_load[s.name]
-                RR[k] = s.resistance
+                RR[k] += s.resistance
             else:
                 for i, br in enumerate(brs):
                     if br.source == s.name:
@@ -192,8 +207,18 @@ def assemble(problem, progress=None) -> System:
         S0[2][1] = sp.csr_matrix(IU)
         S0[2][2] = sp.diags(RR)
         S1[2][0] = sp.csr_matrix(IA)
-    n = nf + nb + nd
-    shapes = (nf, nb, nd)
+    if nc:
+        IC = np.zeros((nd, nc))  # driven rows, capacitor-voltage columns
+        CI = np.zeros((nc, nd))  # capacitor rows, driven-current columns
+        for m, s in enumerate(caps):
+            k = driven.index(s)
+            IC[k, m] = -1.0
+            CI[m, k] = 1.0
+        S0[2][3] = sp.csr_matrix(IC)
+        S0[3][2] = sp.csr_matrix(CI)
+        S1[3][3] = sp.diags([float(s.capacitance) for s in caps])
+    n = nf + nb + nd + nc
+    shapes = (nf, nb, nd, nc)
     system.S0 = _block(S0, shapes, n)
     system.S1 = _block(S1, shapes, n)
     system.fixed, system.fixed_values = dirichlet(problem, basis, form)
