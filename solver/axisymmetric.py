@@ -23,6 +23,7 @@ is imposed on the axis. B_r = -dA/dz, B_z = dA/dr + A/r.
 
 from __future__ import annotations
 
+import numpy as np
 from skfem import BilinearForm, Functional, LinearForm
 
 AXISYMMETRIC = True
@@ -65,14 +66,23 @@ def cross_section(w):
     return 1.0 + 0.0 * w.x[0]
 
 
+def _over_r(value, r, at_axis):
+    """value / r, with ``at_axis`` where r = 0 (probes may sit on the axis;
+    quadrature points never do)."""
+    r = np.asarray(r)
+    safe = np.where(r > 0, r, 1.0)
+    return np.where(r > 0, value / safe, at_axis)
+
+
 def flux_density(a, grad_a, x):
-    """(Br, Bz) = (-dA/dz, dA/dr + A/r)."""
-    return -grad_a[1], grad_a[0] + a / x[0]
+    """(Br, Bz) = (-dA/dz, dA/dr + A/r); on the axis A/r -> dA/dr."""
+    return -grad_a[1], grad_a[0] + _over_r(a, x[0], grad_a[0])
 
 
 def voltage_field(u, x):
-    """The applied part of E_phi in a massive conductor: u / r = V / (2 pi r)."""
-    return u / x[0]
+    """The applied part of E_phi in a massive conductor: u / r = V / (2 pi r) (0 on the axis,
+    where no finite current density can be driven)."""
+    return _over_r(u, x[0], 0.0)
 
 
 def weight(x):

@@ -32,10 +32,11 @@ def register_backend(name: str, available=lambda: True, preferred: bool = False)
 
 @register_backend("scipy-superlu")
 def superlu(matrix):
-    """SciPy's SuperLU with the minimum-degree ordering on A^T + A (good for
-    the structurally symmetric systems of this solver)."""
+    """SciPy's SuperLU with its default COLAMD column ordering (measured on a 6.2e4
+    unknown axisymmetric P2 system: COLAMD 1.0 s; MMD on A^T + A 22 s, its fill-in
+    half as large but its ordering slow on meshes from gmsh)."""
     try:
-        lu = spla.splu(matrix.tocsc(), permc_spec="MMD_AT_PLUS_A")
+        lu = spla.splu(matrix.tocsc(), permc_spec="COLAMD")
     except RuntimeError as exc:  # "Factor is exactly singular"
         raise SolveError(f"the system is singular ({exc}): a region floats or a source "
                          "is not tied to anything") from exc

@@ -50,8 +50,11 @@ def main(argv: list[str] | None = None) -> int:
         args = parser.parse_args(argv)
     except SystemExit as exc:  # argparse: --help exits 0, usage errors exit 2
         return int(exc.code or 0)
-    logging.basicConfig(level=logging.DEBUG if args.verbose else logging.WARNING,
-                        format="%(levelname)s %(name)s: %(message)s")
+    console = logging.StreamHandler()
+    console.setLevel(logging.DEBUG if args.verbose else logging.WARNING)
+    console.setFormatter(logging.Formatter("%(levelname)s %(name)s: %(message)s"))
+    logging.getLogger().addHandler(console)
+    logging.getLogger().setLevel(logging.DEBUG if args.verbose else logging.WARNING)
     try:
         return int(args.handler(args) or 0)
     except CaseError as exc:
@@ -66,6 +69,8 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("whorl: interrupted", file=sys.stderr)
         return 130
+    finally:
+        logging.getLogger().removeHandler(console)
 
 
 if __name__ == "__main__":
