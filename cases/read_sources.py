@@ -3,7 +3,9 @@
 Harmonic and static sources carry RMS phasors: ``current`` (A) or ``voltage``
 (V) with ``phase`` in degrees. Transient sources carry a ``waveform`` of
 instantaneous values instead; the solver objects then have neither current
-nor voltage, and the waveforms (SI, validated) are returned separately.
+nor voltage but a waveform object (the SI dicts are also returned
+separately). A transient source with ``capacitance`` (and ``initial_voltage``)
+is a capacitor discharging through it; its ``resistance`` is in series.
 """
 
 from __future__ import annotations
@@ -16,16 +18,19 @@ from whorl.cases.errors import CaseError
 from whorl.cases.read_regions import expand
 from whorl.cases.reader import Context, Table, array_of_tables
 from whorl.solver.sources import AppliedField, Massive, Shorted, Stranded
+from whorl.solver.waveforms import from_dict
 
 KINDS = ("stranded", "massive", "applied-field")
 NAME = re.compile(r"^[A-Za-z0-9_][A-Za-z0-9_.-]*$")
 _DRIVEN = {"name", "kind", "regions", "return_regions"}
 _KEYS = {
     ("stranded", False): _DRIVEN | {"turns", "current", "voltage", "phase", "resistance"},
-    ("massive", False): _DRIVEN | {"connection", "current", "voltage", "phase"},
+    ("massive", False): _DRIVEN | {"connection", "current", "voltage", "phase", "resistance"},
     ("applied-field", False): {"name", "kind", "flux_density", "phase"},
-    ("stranded", True): _DRIVEN | {"turns", "resistance", "waveform", "drive"},
-    ("massive", True): _DRIVEN | {"connection", "waveform", "drive"},
+    ("stranded", True): _DRIVEN | {"turns", "resistance", "waveform", "drive", "capacitance",
+                                   "initial_voltage"},
+    ("massive", True): _DRIVEN | {"connection", "waveform", "drive", "resistance",
+                                  "capacitance", "initial_voltage"},
     ("applied-field", True): {"name", "kind", "flux_density"},
 }
 WAVEFORM_KEYS = {"step": {"value"}, "sine": {"peak", "frequency", "phase"},
@@ -111,10 +116,20 @@ def _driven(ctx, table, name, kind, regions, conductivity, transient):
                 raise table.error("regions", f"region {region!r} does not conduct: a massive "
                                              "source needs conductors (use stranded for a "
                                              "winding in a non-conducting region)")
-    current = voltage = waveform = None
+    current = voltage = waveform = capacitance = None
+    drive, initial = "current", 0.0
     if transient:
-        drive = table.string("drive", "current", ("current", "voltage"))
-        waveform = read_waveform(table.table("waveform"), drive)
+        if table.has("capacitance"):
+            capacitance = table.positive("capacitance", "capacitance")
+            initial = table.value("initial_voltage", "voltage", 0.0)
+            drive = table.string("drive", "voltage", ("voltage",))
+            if table.has("waveform"):
+                waveform = read_waveform(table.table("waveform"), drive)
+        else:
+            if table.has("initial_voltage"):
+                raise table.error("initial_voltage", "initial_voltage goes with capacitance")
+            drive = table.string("drive", "current", ("current", "voltage"))
+            waveform = read_waveform(table.table("waveform"), drive)
     else:
         if table.has("current") == table.has("voltage"):
             raise table.error("current", "give exactly one of current and voltage")
@@ -122,12 +137,17 @@ def _driven(ctx, table, name, kind, regions, conductivity, transient):
             current = _phasor(table, "current")
         else:
             voltage = _phasor(table, "voltage")
+    shape = from_dict(waveform) if waveform else None
+    extra = {"waveform": shape, "drive": drive, "capacitance": capacitance,
+             "initial_voltage": initial}
+    resistance = table.positive("resistance", "resistance", 0.0, zero=True)
     if kind == "stranded":
         turns = table.positive("turns", "dimensionless", 1.0)
-        resistance = table.positive("resistance", "resistance", 0.0, zero=True)
-        return Stranded(name, listed, turns, current, voltage, resistance, back), waveform
+        return Stranded(name, listed, turns, current, voltage, resistance, back,
+                        **extra), waveform
     connection = table.string("connection", "series", ("series", "parallel"))
-    return Massive(name, listed, connection, current, voltage, back), waveform
+    return Massive(name, listed, connection, current, voltage, back,
+                   resistance=resistance, **extra), waveform
 
 
 def _applied(ctx: Context, table: Table, name: str, transient: bool) -> AppliedField:

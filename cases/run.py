@@ -17,8 +17,11 @@ from whorl import __version__
 from whorl.cases import model
 from whorl.cases.output import staged_folder
 from whorl.meshes.build import build_mesh
+from whorl.postprocess.plots import PLOTS, frequency_text, plot_field, plot_frequency_curves, plot_line
 from whorl.postprocess.records import solution_record
+from whorl.postprocess.report import write_report
 from whorl.postprocess.tables import REGION_COLUMNS, line_rows, region_rows, write_csv
+from whorl.postprocess.vtu import write_fields_vtu
 from whorl.solver.harmonic import solve_harmonic
 
 log = logging.getLogger(__name__)
@@ -94,9 +97,39 @@ def solve_case(case, progress=None, mesh=None):
     return results, solutions, mesh
 
 
+def _suffix(solutions, k) -> str:
+    return "" if len(solutions) == 1 else f"_{k + 1}"
+
+
+def write_pictures(case, results, solutions, folder: Path, lines: dict) -> tuple[list, dict]:
+    """Field files and plots as ``[output]`` asks; returns (files, report images)."""
+    files, images = [], {}
+    for k, sol in enumerate(solutions):
+        tag = _suffix(solutions, k)
+        at = frequency_text(sol.frequency_hz)
+        if case.output.fields:
+            files.append(write_fields_vtu(sol, folder / f"fields{tag}.vtu"))
+        if case.output.plots:
+            for kind in PLOTS:
+                path = plot_field(kind, sol, folder / f"{kind}{tag}.png")
+                files.append(path)
+                images[f"{kind.replace('-', ' ')} at {at}"] = path
+    if case.output.plots:
+        for name, (header, rows) in lines.items():
+            files.append(plot_line(header, rows, folder / f"line_{name}.png", title=name))
+            images[f"line {name}"] = files[-1]
+        if len(solutions) > 1:
+            files.append(plot_frequency_curves(results["solutions"],
+                                               folder / "frequency_curves.png"))
+            images["against frequency"] = files[-1]
+    return files, images
+
+
 def write_results(case, results, solutions, folder: Path) -> list[Path]:
-    """Write results.json, regions.csv, line tables and the case into ``folder``."""
+    """Write results.json, regions.csv, line tables, fields, plots, the report and the
+    case into ``folder``."""
     files = []
+    lines = {}
     path = folder / "results.json"
     path.write_text(json.dumps(results, indent=2, allow_nan=True), encoding="utf-8")
     files.append(path)
@@ -111,6 +144,10 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
             header = ["frequency_hz", *h]
             rows += [[s.frequency_hz, *row] for row in r]
         files.append(write_csv(folder / f"line_{line.name}.csv", header, rows))
+        lines[line.name] = (header, rows)
+    pictures, images = write_pictures(case, results, solutions, folder, lines)
+    files += pictures
+    files.append(write_report(results, images, folder / "report.html"))
     if case.path is not None:
         text = Path(case.path).read_text(encoding="utf-8")
         files.append(folder / "case.toml")

@@ -52,7 +52,8 @@ def terminal_voltage(solution, source) -> complex:
         return flux_linkage(solution, source, solution.a_rate) + source.resistance * current
     u = solution.branch_u
     return complex(sum(br.sign * system.kappa * u[i]
-                       for i, br in enumerate(system.branches) if br.source == source.name))
+                       for i, br in enumerate(system.branches) if br.source == source.name)
+                   + source.resistance * current)
 
 
 def source_results(solution) -> dict[str, SourceResult]:

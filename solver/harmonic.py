@@ -6,10 +6,10 @@ import logging
 import time
 
 import numpy as np
-import scipy.sparse as sp
 
 from whorl.solver import linalg
 from whorl.solver.errors import SolveError
+from whorl.solver.reduction import reduce
 from whorl.solver.solution import Solution
 from whorl.solver.system import assemble
 
@@ -23,47 +23,23 @@ def solve_system(system, frequencies, backend: str = "auto", progress=None):
     the time spent factorising and solving.
     """
     name, factorize = linalg.choose(backend)
-    target = system.target
-    keep = np.unique(target)  # unknowns left after gluing (the identity without one)
-    n = keep.size
-    glued = keep.size < system.size
-    if glued:  # S -> P^T S P with P[i, target[i]] = 1, in the numbering of ``keep``
-        renumber = np.searchsorted(keep, target)
-        P = sp.csr_matrix((np.ones(system.size), (np.arange(system.size), renumber)),
-                          shape=(system.size, n))
-        S0, S1 = (P.T @ system.S0 @ P).tocsc(), (P.T @ system.S1 @ P).tocsc()
-    else:
-        renumber, P = np.arange(n), None
-        S0, S1 = system.S0.tocsc(), system.S1.tocsc()
-    fixed, first = np.unique(renumber[system.fixed], return_index=True)
-    fixed_values = system.fixed_values[first]
-    free = np.setdiff1d(np.arange(n), fixed)
-    S0_ff, S1_ff = S0[free][:, free], S1[free][:, free]
-    S0_fd, S1_fd = S0[free][:, fixed], S1[free][:, fixed]
+    red = reduce(system)
     solutions = []
     t0 = time.perf_counter()
     for i, f in enumerate(frequencies):
         omega = 2 * np.pi * float(f)
         if progress:
-            progress(f"solving {i + 1}/{len(frequencies)} at {f:g} Hz ({free.size} unknowns)")
+            progress(f"solving {i + 1}/{len(frequencies)} at {f:g} Hz ({red.free.size} unknowns)")
         _check_static(system, omega)
-        matrix = (S0_ff + (1j * omega) * S1_ff).tocsc()
-        b = system.rhs(omega)
-        if glued:
-            b = P.T @ b
-        rhs = b[free] - (S0_fd + (1j * omega) * S1_fd) @ fixed_values
-        solve = factorize(matrix)
-        x = np.empty(n, dtype=complex)
-        x[fixed] = fixed_values
-        x[free] = solve(rhs)
-        x = x[renumber]  # back to the full numbering
+        solve = factorize(red.matrix(1.0, 1j * omega))
+        x = red.expand(solve(red.rhs(system.rhs(omega), 1.0, 1j * omega)))
         if not np.all(np.isfinite(x)):
             raise SolveError(f"the solution at {f:g} Hz is not finite: the system is singular "
                              "(a region floats or a source is not tied to anything)")
         solutions.append(Solution(system, float(f), x))
     elapsed = time.perf_counter() - t0
     log.info("solved %d frequencies with %s in %.2f s", len(frequencies), name, elapsed)
-    return solutions, {"backend": name, "solve_s": elapsed, "unknowns": int(free.size)}
+    return solutions, {"backend": name, "solve_s": elapsed, "unknowns": int(red.free.size)}
 
 
 def solve_harmonic(problem, frequencies, backend: str = "auto", progress=None):

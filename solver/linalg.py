@@ -8,6 +8,7 @@ available backend in ``PREFERENCE``.
 from __future__ import annotations
 
 import scipy.sparse.linalg as spla
+from threadpoolctl import threadpool_limits
 
 from whorl.solver.errors import SolveError
 
@@ -36,11 +37,19 @@ def superlu(matrix):
     unknown axisymmetric P2 system: COLAMD 1.0 s; MMD on A^T + A 22 s, its fill-in
     half as large but its ordering slow on meshes from gmsh)."""
     try:
-        lu = spla.splu(matrix.tocsc(), permc_spec="COLAMD")
+        # SuperLU is sequential; its small dense kernels only lose when BLAS spins up
+        # threads, and badly so when several solves share the cores (sweeps, tests).
+        with threadpool_limits(limits=1, user_api="blas"):
+            lu = spla.splu(matrix.tocsc(), permc_spec="COLAMD")
     except RuntimeError as exc:  # "Factor is exactly singular"
         raise SolveError(f"the system is singular ({exc}): a region floats or a source "
                          "is not tied to anything") from exc
-    return lu.solve
+
+    def solve(rhs):
+        with threadpool_limits(limits=1, user_api="blas"):
+            return lu.solve(rhs)
+
+    return solve
 
 
 def choose(name: str = "auto") -> tuple[str, object]:

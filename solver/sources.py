@@ -26,8 +26,8 @@ class Stranded:
 
     Stepped (transient) studies use ``waveform`` instead (instantaneous A or V
     as ``drive`` says). A ``capacitance`` (F) charged to ``initial_voltage``
-    (V) in series, with ``series_resistance`` (ohm), turns the source into a
-    capacitor discharge (its current is then an unknown).
+    (V) in series turns the source into a capacitor discharge through the
+    winding and its resistance (its current is then an unknown).
     """
 
     name: str
@@ -42,7 +42,6 @@ class Stranded:
     drive: str = "current"
     capacitance: float | None = None
     initial_voltage: float = 0.0
-    series_resistance: float = 0.0
 
 
 @dataclass(frozen=True)
@@ -51,9 +50,9 @@ class Massive:
 
     ``connection`` is ``"series"`` (each region carries the source current) or
     ``"parallel"`` (the regions share the terminal voltage). One of
-    ``current`` (A) and ``voltage`` (V) is given; ``waveform``, ``drive``,
-    ``capacitance``, ``initial_voltage`` and ``series_resistance`` as for
-    :class:`Stranded`.
+    ``current`` (A) and ``voltage`` (V) is given. ``resistance`` (ohm) is an
+    external resistance in series with the terminals; ``waveform``, ``drive``,
+    ``capacitance`` and ``initial_voltage`` as for :class:`Stranded`.
     """
 
     name: str
@@ -63,11 +62,11 @@ class Massive:
     voltage: complex | None = None
     return_regions: tuple[str, ...] = ()
     kind: str = "massive"
+    resistance: float = 0.0
     waveform: object | None = None
     drive: str = "current"
     capacitance: float | None = None
     initial_voltage: float = 0.0
-    series_resistance: float = 0.0
 
 
 @dataclass(frozen=True)

@@ -14,8 +14,8 @@ Rows, with kappa = depth (planar) or 2 pi (axisymmetric) and d/dt -> j omega:
 
 - field:    K A + M dA/dt - sum_b c_b u_b - sum_s f_s I_s = sum_s' f_s' i_s'(t)
 - branch b: -c_b^T dA/dt + G_b u_b - sign_b I_s(b) = sign_b i(t) (current-driven) or 0
-- driven massive source:   kappa sum_b sign_b u_b + R_ext I_s - v_C = v(t)
-- driven stranded source:  kappa f_s^T dA/dt + (R_s + R_ext) I_s - v_C = v(t)
+- driven massive source:   kappa sum_b sign_b u_b + R_s I_s - v_C = v(t)
+- driven stranded source:  kappa f_s^T dA/dt + R_s I_s - v_C = v(t)
 - series capacitor:        C dv_C/dt + I_s = 0   (v_C drives the current out of it)
 """
 
@@ -192,11 +192,10 @@ def assemble(problem, progress=None) -> System:
         IA = np.zeros((nd, nf))     # driven rows, field columns (S1)
         RR = np.zeros(nd)
         for k, s in enumerate(driven):
-            RR[k] = s.series_resistance
+            RR[k] = s.resistance
             if isinstance(s, Stranded):
                 FI[:, k] = -system.stranded_load[s.name]
                 IA[k] = kappa * system.stranded_load[s.name]
-                RR[k] += s.resistance
             else:
                 for i, br in enumerate(brs):
                     if br.source == s.name:
