@@ -62,8 +62,11 @@ class Solution:
         return self.x[nf: nf + len(self.system.branches)]
 
     def source_current(self, source) -> complex:
-        """The RMS current phasor of a stranded or massive source (A)."""
+        """The current of a stranded or massive source (A): an RMS phasor, or the
+        instantaneous value of a transient state."""
         if not current_is_unknown(source):
+            if self.time_s is not None:  # a transient state: the waveform's value
+                return complex(float(source.waveform(self.time_s)))
             return complex(source.current)
         k = self.system.driven.index(source)
         return complex(self.x[self.system.n_field + len(self.system.branches) + k])

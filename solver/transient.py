@@ -70,6 +70,7 @@ def march(system, end_s: float, step_s: float, scheme: str = "bdf2", backend: st
     h = step_s
     name, factorize = linalg.choose(backend)
     red = reduce(system)
+    red.fixed_values = red.fixed_values.real.copy()  # instantaneous values are real
     x = initial_state(system)
     yield Solution(system, 0.0, x.astype(complex), np.zeros(system.size, dtype=complex), 0.0)
     euler = factorize(red.matrix(1.0, 1.0 / h))

@@ -50,3 +50,32 @@ def cylinder_field(r, h0, radius, sigma, mu_r, frequency):
     omega = 2 * np.pi * frequency
     k = np.sqrt(-1j * omega * MU0 * mu_r * sigma)
     return h0 * jv(0, k * np.asarray(r)) / jv(0, k * radius)
+
+
+def slab_step_flux(t, half_thickness, sigma, mu_r, h0, terms=200):
+    r"""Flux per metre of height (Wb/m) in half a slab (0 < x < L) after its surface field
+    steps from 0 to ``h0`` at t = 0 (instantaneous values).
+
+    The diffusion equation dH/dt = (1/(mu sigma)) d2H/dx2 is the heat equation; with
+    the surface held at h0 (H. S. Carslaw and J. C. Jaeger, *Conduction of Heat in
+    Solids*, 2nd ed., 1959, section 3.3):
+    H(x, t) = h0 [1 - (4/pi) sum (-1)^n/(2n+1) exp(-(2n+1)^2 pi^2 D t / (4 L^2)) cos((2n+1) pi x/(2L))]
+    and its integral over 0 < x < L gives
+    Phi(t) = mu h0 L [1 - sum 8/((2n+1)^2 pi^2) exp(-(2n+1)^2 pi^2 D t / (4 L^2))].
+    """
+    L = half_thickness
+    D = 1 / (MU0 * mu_r * sigma)
+    k = 2 * np.arange(terms) + 1
+    t = np.atleast_1d(np.asarray(t, dtype=float))
+    s = np.sum(8 / (k[None, :] ** 2 * np.pi**2)
+               * np.exp(-(k[None, :] ** 2) * np.pi**2 * D * t[:, None] / (4 * L**2)), axis=1)
+    return MU0 * mu_r * h0 * L * (1 - s)
+
+
+def rlc_discharge(t, capacitance, inductance, resistance, v0):
+    """Current (A) of a capacitor charged to v0 discharging through series R and L
+    (underdamped): i = v0/(omega_d L) exp(-alpha t) sin(omega_d t), alpha = R/(2L),
+    omega_d = sqrt(1/(LC) - alpha^2) (any circuits text)."""
+    alpha = resistance / (2 * inductance)
+    wd = np.sqrt(1 / (inductance * capacitance) - alpha**2)
+    return v0 / (wd * inductance) * np.exp(-alpha * t) * np.sin(wd * t)
