@@ -5,6 +5,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from whorl.meshes.geometry import Geometry
+from whorl.solver.boundary import Open
 from whorl.solver.materials import skin_depth
 from whorl.solver.problem import Problem
 from whorl.solver.sources import Stranded
@@ -15,10 +16,20 @@ def wound_regions(case) -> set[str]:
             for r in (*s.regions, *s.return_regions)}
 
 
+def sizing_frequency(case) -> float:
+    """The frequency (Hz) the mesh is sized for: the highest of a harmonic study; for a
+    transient one 1/(20 step), about the fastest variation the steps resolve (a rule of
+    this project: a period of 20 steps)."""
+    if case.study.kind == "transient":
+        return 1.0 / (20.0 * case.study.step_s)
+    return max(case.study.frequencies, default=0.0)
+
+
 def sized_geometry(case) -> Geometry:
     """The case's geometry with each eddy-current region's skin depth (length unit)
-    at the study's highest frequency, for the mesher's surface refinement."""
-    top = max(case.study.frequencies, default=0.0)
+    at :func:`sizing_frequency`, for the mesher's surface refinement; an open
+    boundary asks the mesher for the exterior disk."""
+    top = sizing_frequency(case)
     wound = wound_regions(case)
     regions = []
     for spec in case.geometry.regions:
@@ -28,7 +39,10 @@ def sized_geometry(case) -> Geometry:
             delta = skin_depth(top, material.conductivity, material.relative_permeability)
             delta /= case.unit_m
         regions.append(replace(spec, skin_depth=delta))
-    return replace(case.geometry, regions=tuple(regions))
+    domain = case.geometry.domain
+    if any(isinstance(c, Open) for c in case.boundary.values()):
+        domain = replace(domain, open_boundary=True)
+    return replace(case.geometry, regions=tuple(regions), domain=domain)
 
 
 def problem(case, tagged) -> Problem:

@@ -16,10 +16,12 @@ from pathlib import Path
 from whorl import __version__
 from whorl.cases import model
 from whorl.cases.output import staged_folder
+from whorl.cases.run_transient import series_tables, solve_transient
 from whorl.meshes.build import build_mesh
 from whorl.postprocess.plots import PLOTS, frequency_text, plot_field, plot_frequency_curves, plot_line
 from whorl.postprocess.records import solution_record
 from whorl.postprocess.report import write_report
+from whorl.postprocess.series_plots import plot_series
 from whorl.postprocess.tables import REGION_COLUMNS, line_rows, region_rows, write_csv
 from whorl.postprocess.vtu import write_fields_vtu
 from whorl.solver.harmonic import solve_harmonic
@@ -56,8 +58,12 @@ def loop_description(loop, unit_m) -> dict:
     return out
 
 
-def solve_case(case, progress=None, mesh=None):
-    """Mesh (unless ``mesh`` is given) and solve ``case``; returns (results, solutions, mesh)."""
+def solve_case(case, progress=None, mesh=None, folder: Path | None = None):
+    """Mesh (unless ``mesh`` is given) and solve ``case``; returns (results, solutions, mesh).
+
+    A transient study returns no solutions but a ``series`` block in the results;
+    its field snapshots are written into ``folder`` (when given) as it marches.
+    """
     say = progress or (lambda message: None)
     timing = {}
     t0 = time.perf_counter()
@@ -66,18 +72,26 @@ def solve_case(case, progress=None, mesh=None):
         mesh = build_mesh(model.sized_geometry(case), progress=say)
     timing["mesh"] = time.perf_counter() - t0
     problem = model.problem(case, mesh)
-    frequencies = list(case.study.frequencies)
-    solutions, info = solve_harmonic(problem, frequencies, progress=say)
+    loops = [loop_description(loop, case.unit_m) for loop in case.loops]
+    body = {}
+    if case.study.kind == "transient":
+        series, files, info = solve_transient(case, problem, loops, say, folder)
+        solutions, system = [], info["system"]
+        body["series"] = series
+        if files:
+            body["snapshots"] = [str(Path(f).relative_to(folder)) for f in files]
+        timing["postprocess"] = 0.0
+    else:
+        solutions, info = solve_harmonic(problem, list(case.study.frequencies), progress=say)
+        system = solutions[0].system
+        say("postprocessing")
+        t1 = time.perf_counter()
+        points = {p.name: (p.at[0] * case.unit_m, p.at[1] * case.unit_m) for p in case.points}
+        body["solutions"] = [solution_record(s, points, loops) for s in solutions]
+        timing["postprocess"] = time.perf_counter() - t1
     timing["assemble"] = info["assemble_s"]
     timing["solve"] = info["solve_s"]
-    say("postprocessing")
-    t1 = time.perf_counter()
-    points = {p.name: (p.at[0] * case.unit_m, p.at[1] * case.unit_m) for p in case.points}
-    loops = [loop_description(loop, case.unit_m) for loop in case.loops]
-    records = [solution_record(s, points, loops) for s in solutions]
-    timing["postprocess"] = time.perf_counter() - t1
     timing["total"] = time.perf_counter() - t0
-    system = solutions[0].system
     results = {
         "format": 1,
         "whorl_version": __version__,
@@ -87,11 +101,11 @@ def solve_case(case, progress=None, mesh=None):
         "parameters": dict(case.parameters),
         "mesh": {"nodes": int(mesh.mesh.p.shape[1]), "elements": int(mesh.mesh.t.shape[1]),
                  "dofs": int(system.size), "order": case.order,
-                 "min_quality": mesh.info.get("min_quality")},
+                 "quality_min": mesh.info.get("quality_min")},
         "timing_s": timing,
         "solver": {"backend": info["backend"], "unknowns": info["unknowns"],
                    "machine": platform.machine(), "python": platform.python_version()},
-        "solutions": records,
+        **body,
         "caution": CAUTION,
     }
     return results, solutions, mesh
@@ -128,13 +142,14 @@ def write_pictures(case, results, solutions, folder: Path, lines: dict) -> tuple
 def write_results(case, results, solutions, folder: Path) -> list[Path]:
     """Write results.json, regions.csv, line tables, fields, plots, the report and the
     case into ``folder``."""
-    files = []
+    files = [folder / f for f in results.get("snapshots", ())]
     lines = {}
     path = folder / "results.json"
     path.write_text(json.dumps(results, indent=2, allow_nan=True), encoding="utf-8")
     files.append(path)
-    files.append(write_csv(folder / "regions.csv", REGION_COLUMNS,
-                           region_rows(results["solutions"])))
+    if "solutions" in results:
+        files.append(write_csv(folder / "regions.csv", REGION_COLUMNS,
+                               region_rows(results["solutions"])))
     for line in case.lines:
         header, rows = None, []
         for s in solutions:
@@ -147,7 +162,14 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
         lines[line.name] = (header, rows)
     pictures, images = write_pictures(case, results, solutions, folder, lines)
     files += pictures
-    files.append(write_report(results, images, folder / "report.html"))
+    tables = None
+    if "series" in results:
+        files += series_tables(results["series"], folder)
+        if case.output.plots:
+            files.append(plot_series(results["series"], folder / "series.png", case.title))
+            images["time series"] = files[-1]
+        tables = transient_tables(results["series"])
+    files.append(write_report(results, images, folder / "report.html", tables))
     if case.path is not None:
         text = Path(case.path).read_text(encoding="utf-8")
         files.append(folder / "case.toml")
@@ -157,6 +179,26 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
     files.append(folder / "case.resolved.json")
     files[-1].write_text(json.dumps(resolved, indent=2, default=str), encoding="utf-8")
     return files
+
+
+def transient_tables(series: dict) -> dict:
+    """Report tables of a transient run: peaks per source and region, energy balance."""
+    t = series["time_s"]
+    peaks = []
+    for name, rec in series["sources"].items():
+        k = max(range(len(t)), key=lambda i: abs(rec["current_a"][i]))
+        peaks.append([f"source {name}", "current_a", rec["current_a"][k], t[k]])
+    for name, rec in series["regions"].items():
+        if max(rec["loss_w"]) > 0:
+            k = max(range(len(t)), key=lambda i: rec["loss_w"][i])
+            peaks.append([f"region {name}", "loss_w", rec["loss_w"][k], t[k]])
+            k = max(range(len(t)), key=lambda i: abs(rec["force_n"][i][1]))
+            peaks.append([f"region {name}", "force_y_n", rec["force_n"][k][1], t[k]])
+    bal = series["energy_balance"]
+    return {"Peaks": (["what", "quantity", "peak", "at time_s"], peaks),
+            "Energy balance": (["delivered_j", "dissipated_j", "stored_j", "relative_mismatch"],
+                               [[bal["delivered_j"], bal["dissipated_j"], bal["stored_j"],
+                                 bal["relative_mismatch"]]])}
 
 
 def run_case(case, root: Path, progress=None) -> RunOutcome:
@@ -177,7 +219,7 @@ def run_case(case, root: Path, progress=None) -> RunOutcome:
                 if progress:
                     progress(message)
 
-            results, solutions, _ = solve_case(case, say)
+            results, solutions, _ = solve_case(case, say, folder=tmp)
             files = write_results(case, results, solutions, tmp)
             log.info("done in %.2f s", results["timing_s"]["total"])
         finally:

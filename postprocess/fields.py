@@ -54,20 +54,45 @@ def element_sources(solution):
     return u, js
 
 
-def interpolate_complex(basis, vec):
-    """Value and gradient of a complex finite-element vector at the quadrature points."""
-    re = basis.interpolate(np.ascontiguousarray(vec.real))
-    im = basis.interpolate(np.ascontiguousarray(vec.imag))
-    return np.asarray(re) + 1j * np.asarray(im), re.grad + 1j * im.grad
+_TABLES: dict = {}
+
+
+def _basis_tables(basis):
+    """Basis values (K, E, Q) and gradients (K, 2, E, Q) at the quadrature points, cached
+    per basis: time series evaluate the same basis hundreds of times."""
+    key = id(basis)
+    if key not in _TABLES or _TABLES[key][0] is not basis:
+        _TABLES.clear()  # one basis at a time is enough
+        phi = np.array([np.asarray(basis.basis[k][0]) for k in range(basis.Nbfun)])
+        dphi = np.array([basis.basis[k][0].grad for k in range(basis.Nbfun)])
+        _TABLES[key] = (basis, phi, dphi, basis.mapping.F(basis.X))
+    return _TABLES[key][1:]
+
+
+def _combine(pattern, coeff, table):
+    """einsum on real and imaginary parts apart (faster than on complex numbers)."""
+    if np.iscomplexobj(coeff):
+        return np.einsum(pattern, coeff.real, table) + 1j * np.einsum(pattern, coeff.imag, table)
+    return np.einsum(pattern, coeff, table)
+
+
+def interpolate_complex(basis, vec, gradient: bool = True):
+    """Value and gradient (None unless ``gradient``) of a finite-element vector at the
+    quadrature points."""
+    phi, dphi, _ = _basis_tables(basis)
+    coeff = np.asarray(vec)[basis.element_dofs]  # (K, E)
+    value = _combine("ke,keq->eq", coeff, phi)
+    grad = _combine("ke,kieq->ieq", coeff, dphi) if gradient else None
+    return value, grad
 
 
 def quadrature_fields(solution) -> QuadratureFields:
     """Evaluate every field quantity of ``solution`` at the quadrature points."""
     system = solution.system
     basis, form = system.basis, system.form
-    x = basis.mapping.F(basis.X)  # (2, E, Q)
+    x = _basis_tables(basis)[2]  # (2, E, Q) coordinates of the quadrature points
     a, grad_a = interpolate_complex(basis, solution.a)
-    a_rate, _ = interpolate_complex(basis, solution.a_rate)
+    a_rate, _ = interpolate_complex(basis, solution.a_rate, gradient=False)
     bx, by = form.flux_density(a, grad_a, x)
     b = np.array([bx, by])
     u, js = element_sources(solution)

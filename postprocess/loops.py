@@ -51,31 +51,37 @@ def _gauss(a, b, n):
     return nodes, weights
 
 
-def axisymmetric_loop(solution, name, r, z, turns=1.0) -> LoopResult:
-    """The loop r = const, z = const (metres)."""
+def axisymmetric_loop(solution, name, r, z, turns=1.0, surface=True) -> LoopResult:
+    """The loop r = const, z = const (metres); ``surface=False`` skips the B integral
+    (``flux_from_b_wb`` is then NaN), which time series do not need."""
     at = probe(solution, np.array([[r], [z]]))
     flux = 2 * np.pi * r * at.a[0]
-    rr, w = _gauss(0.0, r, SAMPLES)
-    disk = probe(solution, np.array([rr, np.full_like(rr, z)]))
-    flux_b = np.sum(disk.b[1] * 2 * np.pi * rr * w)
+    flux_b = complex(np.nan)
+    if surface:
+        rr, w = _gauss(0.0, r, SAMPLES)
+        disk = probe(solution, np.array([rr, np.full_like(rr, z)]))
+        flux_b = np.sum(disk.b[1] * 2 * np.pi * rr * w)
     emf_e = 2 * np.pi * r * at.e[0]
     emf = -2 * np.pi * r * at.a_rate[0]
     return LoopResult(name, turns, turns * flux, turns * flux_b, turns * emf, turns * emf_e)
 
 
-def planar_loop(solution, name, start, end, turns=1.0) -> LoopResult:
-    """The loop with long sides through ``start`` and ``end`` (metres), length = depth."""
+def planar_loop(solution, name, start, end, turns=1.0, surface=True) -> LoopResult:
+    """The loop with long sides through ``start`` and ``end`` (metres), length = depth;
+    ``surface`` as for :func:`axisymmetric_loop`."""
     depth = solution.problem.depth_m
     ends = probe(solution, np.array([[start[0], end[0]], [start[1], end[1]]]))
     flux = depth * (ends.a[0] - ends.a[1])
-    s, w = _gauss(0.0, 1.0, SAMPLES)
-    p0, p1 = np.asarray(start, float), np.asarray(end, float)
-    length = np.hypot(*(p1 - p0))
-    t = (p1 - p0) / length
-    normal = np.array([-t[1], t[0]])
-    pts = p0[:, None] + (p1 - p0)[:, None] * s[None, :]
-    strip = probe(solution, pts)
-    flux_b = depth * length * np.sum((strip.b[0] * normal[0] + strip.b[1] * normal[1]) * w)
+    flux_b = complex(np.nan)
+    if surface:
+        s, w = _gauss(0.0, 1.0, SAMPLES)
+        p0, p1 = np.asarray(start, float), np.asarray(end, float)
+        length = np.hypot(*(p1 - p0))
+        t = (p1 - p0) / length
+        normal = np.array([-t[1], t[0]])
+        pts = p0[:, None] + (p1 - p0)[:, None] * s[None, :]
+        strip = probe(solution, pts)
+        flux_b = depth * length * np.sum((strip.b[0] * normal[0] + strip.b[1] * normal[1]) * w)
     emf_e = depth * (ends.e[0] - ends.e[1])
     emf = -depth * (ends.a_rate[0] - ends.a_rate[1])
     return LoopResult(name, turns, turns * flux, turns * flux_b, turns * emf, turns * emf_e)

@@ -40,6 +40,8 @@ def region_record(t) -> dict:
         "area_m2": t.area_m2,
         "peak_loss_density_w_per_m3": t.peak_loss_density_w_per_m3,
         "peak_loss_at_m": list(t.peak_loss_at_m) if t.peak_loss_at_m else None,
+        **({"radial_load_n": t.radial_load_n, "mean_radial_pressure_pa": t.mean_radial_pressure_pa}
+           if t.radial_load_n is not None else {}),
     }
 
 
@@ -81,11 +83,12 @@ def loop_record(lp) -> dict:
             "emf_v": pair(lp.emf_v), "emf_from_e_v": pair(lp.emf_from_e_v)}
 
 
-def loop_result(solution, loop: dict):
+def loop_result(solution, loop: dict, surface: bool = True):
     """``loop``: name, turns and ``at`` (axisymmetric) or ``start``/``end`` (planar), metres."""
+    turns = loop.get("turns", 1.0)
     if solution.problem.axisymmetric:
-        return axisymmetric_loop(solution, loop["name"], *loop["at"], loop.get("turns", 1.0))
-    return planar_loop(solution, loop["name"], loop["start"], loop["end"], loop.get("turns", 1.0))
+        return axisymmetric_loop(solution, loop["name"], *loop["at"], turns, surface)
+    return planar_loop(solution, loop["name"], loop["start"], loop["end"], turns, surface)
 
 
 def derived_numbers(solution, regions, sources) -> dict:

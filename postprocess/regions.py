@@ -17,6 +17,10 @@ class RegionTotals:
     loss_w : eddy-current loss (W)
     magnetic_energy_j : time-average stored magnetic energy (J)
     force_n : (Fx, Fy) or (Fr, Fz) time-average Lorentz force (N); Fr of a full ring is 0
+    radial_load_n : axisymmetric only: the radial force density summed as a scalar over
+        the ring, int f_r dV (N): > 0 bursts the ring outwards, < 0 crushes it inwards
+    mean_radial_pressure_pa : axisymmetric only: radial_load_n over the ring's outer
+        lateral area 2 pi r_max h (Pa), the mean pressure that holds the load
     """
 
     name: str
@@ -27,6 +31,8 @@ class RegionTotals:
     area_m2: float
     peak_loss_density_w_per_m3: float = 0.0
     peak_loss_at_m: tuple[float, float] | None = None
+    radial_load_n: float | None = None
+    mean_radial_pressure_pa: float | None = None
 
 
 def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
@@ -44,8 +50,10 @@ def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
     loss = per_region((q.loss * q.dv).sum(1))
     energy = per_region((q.energy * q.dv).sum(1))
     area = per_region(q.ds.sum(1))
-    if solution.problem.axisymmetric:
+    axisymmetric = solution.problem.axisymmetric
+    if axisymmetric:
         fx = np.zeros(n)  # the radial forces of a full ring cancel
+        radial = per_region((q.force[0] * q.dv).sum(1))
     else:
         fx = per_region((q.force[0] * q.dv).sum(1))
     fy = per_region((q.force[1] * q.dv).sum(1))
@@ -58,6 +66,14 @@ def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
             e = elems[np.argmax(peak[elems])]
             k = np.argmax(q.loss[e])
             top, at = float(q.loss[e, k]), (float(q.x[0, e, k]), float(q.x[1, e, k]))
+        load = pressure = None
+        if axisymmetric and elems.size and i > 0:
+            mesh = solution.problem.mesh.mesh
+            pts = mesh.p[:, mesh.t[:, elems]]
+            r_max, height = pts[0].max(), pts[1].max() - pts[1].min()
+            load = float(radial[i])
+            pressure = load / (2 * np.pi * r_max * height) if r_max * height > 0 else None
         out[name] = RegionTotals(name, complex(current[i]), float(loss[i]), float(energy[i]),
-                                 (float(fx[i]), float(fy[i])), float(area[i]), top, at)
+                                 (float(fx[i]), float(fy[i])), float(area[i]), top, at,
+                                 load, pressure)
     return out

@@ -252,7 +252,7 @@ def write_report(results: dict, images: dict | None, path, tables: dict | None =
         ("nodes", mesh.get("nodes")), ("elements", mesh.get("elements")),
         ("unknowns", mesh.get("dofs")),
         ("element order", f"P{order} (Lagrange)" if order else "-"),
-        ("least element quality", mesh.get("min_quality")),
+        ("least element quality", mesh.get("quality_min")),
         ("linear solver", solver.get("backend", "-")),
         *[(f"solver {k}", v) for k, v in solver.items() if k != "backend"]]))
     body.append(_key_values("Timing", list(results.get("timing_s", {}).items()), "s"))

@@ -42,6 +42,8 @@ class SeriesRecorder:
             r["current_a"].append(t.current_a.real)
             r["loss_w"].append(t.loss_w)
             r["force_n"].append([t.force_n[0], t.force_n[1]])
+            if t.mean_radial_pressure_pa is not None:
+                r.setdefault("mean_radial_pressure_pa", []).append(t.mean_radial_pressure_pa)
         resistive = 0.0
         system = state.system
         caps = {s.name: i for i, s in enumerate(system.capacitors)}
@@ -57,7 +59,7 @@ class SeriesRecorder:
             if isinstance(s, Stranded | Massive):
                 resistive += s.resistance * state.source_current(s).real ** 2
         for lp in self.loops:
-            res = loop_result(state, lp)
+            res = loop_result(state, lp, surface=False)
             rec = self.loop_series.setdefault(lp["name"], {"flux_wb": [], "emf_v": [],
                                                            "emf_from_e_v": []})
             rec["flux_wb"].append(res.flux_wb.real)

@@ -17,6 +17,35 @@ def _eng(value: float, unit: str) -> str:
     return f"{value / 10 ** exp:.4g} {prefixes[exp]}{unit}"
 
 
+def series_summary(series: dict) -> list[str]:
+    """Peaks of a transient run and its energy bookkeeping."""
+    t = series["time_s"]
+    out = ["", f"transient: {len(t) - 1} steps to {_eng(t[-1], 's')}"]
+    for name, rec in series["sources"].items():
+        k = max(range(len(t)), key=lambda i: abs(rec["current_a"][i]))
+        out.append(f"  source {name}: peak current {_eng(rec['current_a'][k], 'A')} at "
+                   f"{_eng(t[k], 's')}")
+        if "capacitor_voltage_v" in rec:
+            out.append(f"  source {name}: capacitor voltage at the end "
+                       f"{_eng(rec['capacitor_voltage_v'][-1], 'V')}")
+    for name, rec in series["regions"].items():
+        forces = [f[1] for f in rec["force_n"]]
+        if max(rec["loss_w"]) > 0:
+            k = max(range(len(t)), key=lambda i: abs(forces[i]))
+            out.append(f"  region {name}: peak loss {_eng(max(rec['loss_w']), 'W')}, peak axial/y "
+                       f"force {_eng(forces[k], 'N')} at {_eng(t[k], 's')}")
+            if "mean_radial_pressure_pa" in rec:
+                p = rec["mean_radial_pressure_pa"]
+                k = max(range(len(t)), key=lambda i: abs(p[i]))
+                out.append(f"  region {name}: peak mean radial pressure {_eng(p[k], 'Pa')} "
+                           f"({'outwards' if p[k] > 0 else 'inwards'}) at {_eng(t[k], 's')}")
+    bal = series["energy_balance"]
+    out.append(f"  energy: delivered {_eng(bal['delivered_j'], 'J')}, dissipated "
+               f"{_eng(bal['dissipated_j'], 'J')}, stored at the end {_eng(bal['stored_j'], 'J')} "
+               f"(balance off by {100 * bal['relative_mismatch']:.3f} %)")
+    return out
+
+
 def summary_text(results: dict) -> str:
     """The main numbers of every solution of ``results`` (a results.json record)."""
     lines = []
@@ -26,7 +55,9 @@ def summary_text(results: dict) -> str:
     lines.append(f"{case['name']}: {case['geometry']}{depth}; {mesh['elements']} elements, "
                  f"{mesh['dofs']} unknowns (P{mesh['order']}); solver {results['solver']['backend']}; "
                  f"{results['timing_s']['total']:.1f} s")
-    for sol in results["solutions"]:
+    if "series" in results:
+        lines += series_summary(results["series"])
+    for sol in results.get("solutions", []):
         lines.append("")
         lines.append(f"frequency {_eng(sol['frequency_hz'], 'Hz')}: total loss "
                      f"{_eng(sol['totals']['loss_w'], 'W')}, stored energy "

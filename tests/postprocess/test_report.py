@@ -90,7 +90,7 @@ def results():
                  "length_unit": "mm", "study": "harmonic"},
         "parameters": {"freq": 400.0, "gap": 0.02, "label": "<b>bold</b>"},
         "mesh": {"nodes": int(mesh.p.shape[1]), "elements": int(mesh.t.shape[1]),
-                 "dofs": int(sol.system.size), "order": 2, "min_quality": 0.71},
+                 "dofs": int(sol.system.size), "order": 2, "quality_min": 0.71},
         "timing_s": {"mesh": 0.0, "assemble": 0.01, "solve": 0.2, "postprocess": 0.05,
                      "total": 0.26},
         "solver": {"backend": "scipy-superlu", "unknowns": int(sol.system.size)},
