@@ -80,7 +80,7 @@ def frequency_text(frequency_hz: float) -> str:
 class _View:
     """A figure with one axes showing the visible mesh of a solution in its length unit."""
 
-    def __init__(self, solution, title: str, width: float = 7.5):
+    def __init__(self, solution, title: str, width: float = 7.5, padding: float = 0.25):
         from matplotlib.figure import Figure
         from matplotlib.tri import Triangulation
 
@@ -90,18 +90,33 @@ class _View:
         self.unit = unit_name(tagged.unit_m)
         xy = self.vis.xy / tagged.unit_m
         self.tri = Triangulation(xy[0], xy[1], self.vis.triangles)
-        span = np.ptp(xy, axis=1)
-        aspect = min(1.6, max(0.3, span[1] / span[0]))
+        (x0, x1), (y0, y1) = self.extent(xy, padding)
+        aspect = min(1.6, max(0.3, (y1 - y0) / max(x1 - x0, 1e-300)))
         self.fig = Figure(figsize=(width, 1.4 + (width - 1.8) * aspect))
         self.ax = ax = self.fig.add_subplot()
         ax.set_facecolor(BACKGROUND_COLOUR)
         ax.set_aspect("equal")
-        ax.set_xlim(xy[0].min(), xy[0].max())
-        ax.set_ylim(xy[1].min(), xy[1].max())
+        ax.set_xlim(x0, x1)
+        ax.set_ylim(y0, y1)
         names = ("r", "z") if tagged.axisymmetric else ("x", "y")
         ax.set_xlabel(f"{names[0]} [{self.unit}]")
         ax.set_ylabel(f"{names[1]} [{self.unit}]")
         ax.set_title(f"{title}, {frequency_text(solution.frequency_hz)}")
+
+    def extent(self, xy, padding):
+        """The regions' bounding box grown by ``padding`` times its larger side, within the
+        mesh: the parts of interest fill the picture, not the air around them."""
+        tagged = self.tagged
+        mesh = tagged.mesh
+        elems = [tagged.elements(r) for r in tagged.regions]
+        full = ((xy[0].min(), xy[0].max()), (xy[1].min(), xy[1].max()))
+        if not elems or padding is None:
+            return full
+        pts = mesh.p[:, mesh.t[:, np.concatenate(elems)]] / tagged.unit_m
+        lo, hi = pts.reshape(2, -1).min(axis=1), pts.reshape(2, -1).max(axis=1)
+        pad = padding * float(np.max(hi - lo))
+        return ((max(full[0][0], lo[0] - pad), min(full[0][1], hi[0] + pad)),
+                (max(full[1][0], lo[1] - pad), min(full[1][1], hi[1] + pad)))
 
     def outlines(self, colour=OUTLINE_COLOUR, width=0.8):
         """Draw the edges between regions and the outer edges of the visible mesh."""
@@ -150,7 +165,7 @@ def plot_flux_lines(solution, path, levels: int = 24, phase_deg: float = 0.0, dp
     regions are tinted, every region outlined.
     """
     axisym = solution.problem.axisymmetric
-    view = _View(solution, "Flux lines (r A)" if axisym else "Flux lines (A)")
+    view = _View(solution, "Flux lines (r A)" if axisym else "Flux lines (A)", padding=0.8)
     nodal = solution.system.basis.nodal_dofs[0][view.vis.vertices]
     values = np.real(solution.a[nodal] * np.exp(1j * math.radians(phase_deg)))
     if axisym:

@@ -62,6 +62,10 @@ def summary_text(results: dict) -> str:
         lines.append(f"frequency {_eng(sol['frequency_hz'], 'Hz')}: total loss "
                      f"{_eng(sol['totals']['loss_w'], 'W')}, stored energy "
                      f"{_eng(sol['totals']['magnetic_energy_j'], 'J')}")
+        eff = sol.get("derived", {}).get("heating_efficiency")
+        if eff is not None and sol["sources"]:
+            lines.append(f"  heating efficiency (loss in conductors outside any source / all "
+                         f"losses): {100 * eff:.1f} %")
         rows = [(name, r) for name, r in sol["regions"].items()
                 if r["loss_w"] > 0 or r["current_rms_a"] > 0]
         if rows:
@@ -74,6 +78,15 @@ def summary_text(results: dict) -> str:
             lines.append(f"  source {name}: |Z| {_eng(abs(z), 'ohm')}, R {_eng(s['resistance_ohm'], 'ohm')}, "
                          f"L {_eng(s['inductance_h'], 'H')}, P {_eng(s['power_w'], 'W')}, "
                          f"Q {_eng(s['reactive_power_var'], 'var')}")
+            extra = []
+            if s.get("power_factor") is not None:
+                extra.append(f"power factor {s['power_factor']:.3f}")
+            if s.get("tuning_capacitance_parallel_f"):
+                extra.append(f"tuning capacitor {_eng(s['tuning_capacitance_parallel_f'], 'F')} "
+                             f"across the terminals or {_eng(s['tuning_capacitance_series_f'], 'F')} "
+                             "in series")
+            if extra:
+                lines.append("    " + ", ".join(extra))
         for name, p in sol["points"].items():
             b = [complex(*c) for c in p["flux_density_t"]]
             lines.append(f"  point {name}: |B| {_eng((abs(b[0]) ** 2 + abs(b[1]) ** 2) ** 0.5, 'T')}"
