@@ -21,8 +21,8 @@ from whorl.meshes.tagged import TaggedMesh
 def write_msh(tagged: TaggedMesh, path) -> None:
     """Write ``tagged`` to ``path`` as a gmsh 4.1 binary file, coordinates in the length unit.
 
-    Physical tags: regions ``1..n`` in order, the background ``n + 1``, then the
-    sides (``left right bottom top``, ``outer`` or ``axis``). Each physical group is
+    Physical tags: regions ``1..n`` in order, the background ``n + 1``, the
+    exterior disk of an open boundary (``exterior``) if any, then the sides (``left right bottom top``, ``outer`` or ``axis``). Each physical group is
     also one geometrical entity of the same tag.
 
     Raises
@@ -32,6 +32,7 @@ def write_msh(tagged: TaggedMesh, path) -> None:
     """
     mesh = tagged.mesh
     names = [*tagged.regions, tagged.background]
+    names += [n for n in mesh.subdomains if n not in names]  # the open boundary's exterior disk
     sides = [s for s in mesh.boundaries or {} if s not in names]
     clash = set(names) & set(mesh.boundaries or {})
     if clash:
