@@ -1,0 +1,90 @@
+"""Every demo case in cases/examples/ runs through the command line, and its main numbers
+pass the checks a practising engineer would make first."""
+
+import json
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from whorl.cases.cli import main
+
+EXAMPLES = Path(__file__).resolve().parents[2] / "cases" / "examples"
+
+
+def run(name, tmp_path, capsys):
+    code = main(["run", str(EXAMPLES / f"{name}.toml"), "--out", str(tmp_path), "-q"])
+    out = capsys.readouterr().out
+    assert code == 0
+    folder = tmp_path / name
+    return json.loads((folder / "results.json").read_text()), folder, out
+
+
+def test_shaft_end_heater(tmp_path, capsys):
+    results, folder, out = run("shaft-end-heater", tmp_path, capsys)
+    # The contract's top-level keys and one solution.
+    for key in ("format", "case", "parameters", "mesh", "timing_s", "solver", "solutions"):
+        assert key in results
+    assert results["case"] == {**results["case"], "geometry": "axisymmetric", "depth_m": None}
+    sol = results["solutions"][0]
+    # Series turns carry the source current (Kirchhoff's current law).
+    for k in range(1, 9):
+        assert complex(*sol["regions"][f"turn.{k}"]["current_a"]) == pytest.approx(1500.0)
+    # Poynting: the terminals deliver the losses (round-off).
+    src = sol["sources"]["inductor"]
+    assert src["power_w"] == pytest.approx(sol["totals"]["loss_w"], rel=1e-6)
+    assert sol["totals"]["power_balance"]["relative_mismatch"] < 1e-6
+    # Heating efficiency is the shaft's share of all losses.
+    shaft = sol["regions"]["shaft"]["loss_w"]
+    assert sol["derived"]["heating_efficiency"] == pytest.approx(shaft / sol["totals"]["loss_w"])
+    # The tuning capacitor resonates with the coil: omega^2 L C = 1 in series.
+    omega = 2 * np.pi * 3000.0
+    z = complex(*src["impedance_ohm"])
+    assert omega * z.imag * src["tuning_capacitance_series_f"] == pytest.approx(1.0)
+    # The search coil between two turns sits in air: Faraday's law two ways.
+    loop = sol["loops"]["search-coil"]
+    assert complex(*loop["flux_from_b_wb"]) == pytest.approx(complex(*loop["flux_wb"]), rel=5e-3)
+    for name in ("report.html", "fields.vtu", "flux-lines.png", "line_radial.csv", "run.log"):
+        assert (folder / name).stat().st_size > 0
+    assert "power factor" in out and "Caution" in out
+
+
+def test_busbar_cover_plate(tmp_path, capsys):
+    results, folder, _ = run("busbar-cover-plate", tmp_path, capsys)
+    sol = results["solutions"][0]
+    assert results["case"]["depth_m"] == 1.0
+    # Phase currents 2.5 kA at 0, -120, +120 degrees.
+    for name, phase in (("phase-a", 0), ("phase-b", -120), ("phase-c", 120)):
+        i = complex(*sol["sources"][name]["current_a"])
+        assert abs(i) == pytest.approx(2500.0)
+        assert np.degrees(np.angle(i)) == pytest.approx(phase, abs=1e-9)
+    # The cover's ends are open: no net current, but eddy loss.
+    cover = sol["regions"]["cover"]
+    assert cover["current_rms_a"] < 1e-6 * 2500.0
+    assert cover["loss_w"] > 0
+    # The three terminal powers add up to all losses (Poynting), even with one negative.
+    powers = [s["power_w"] for s in sol["sources"].values()]
+    assert sum(powers) == pytest.approx(sol["totals"]["loss_w"], rel=1e-6)
+
+
+def test_tube_forming_pulse(tmp_path, capsys):
+    results, folder, out = run("tube-forming-pulse", tmp_path, capsys)
+    series = results["series"]
+    assert "solutions" not in results
+    t = np.array(series["time_s"])
+    i = np.array(series["sources"]["bank"]["current_a"])
+    v = np.array(series["sources"]["bank"]["capacitor_voltage_v"])
+    assert v[0] == pytest.approx(4000.0)
+    # The bank's lost energy is what the coil took at its terminals (0.5 % as the energy
+    # bookkeeping of the time steps allows).
+    balance = series["energy_balance"]
+    assert 0.5 * 200e-6 * (v[0] ** 2 - v[-1] ** 2) == pytest.approx(balance["delivered_j"],
+                                                                   rel=0.005)
+    assert balance["relative_mismatch"] < 0.005
+    # The induced current pushes the tube inwards at the current's peak.
+    k = np.argmax(np.abs(i))
+    assert series["regions"]["tube"]["mean_radial_pressure_pa"][k] < 0
+    assert t[-1] == pytest.approx(100e-6)
+    snapshots = (folder / "snapshots.pvd").read_text()
+    assert snapshots.count("<DataSet") == len(list((folder / "snapshots").glob("*.vtu")))
+    assert "peak current" in out
