@@ -18,7 +18,13 @@ from whorl.cases import model
 from whorl.cases.output import staged_folder
 from whorl.cases.run_transient import series_tables, solve_transient
 from whorl.meshes.build import build_mesh
-from whorl.postprocess.plots import PLOTS, frequency_text, plot_field, plot_frequency_curves, plot_line
+from whorl.postprocess.plots import (
+    PLOTS,
+    frequency_text,
+    plot_field,
+    plot_frequency_curves,
+    plot_line,
+)
 from whorl.postprocess.records import solution_record
 from whorl.postprocess.report import write_report
 from whorl.postprocess.series_plots import plot_series

@@ -22,7 +22,8 @@ def write_msh(tagged: TaggedMesh, path) -> None:
     """Write ``tagged`` to ``path`` as a gmsh 4.1 binary file, coordinates in the length unit.
 
     Physical tags: regions ``1..n`` in order, the background ``n + 1``, the
-    exterior disk of an open boundary (``exterior``) if any, then the sides (``left right bottom top``, ``outer`` or ``axis``). Each physical group is
+    exterior disk of an open boundary (``exterior``) if any, then the sides
+    (``left right bottom top``, ``outer`` or ``axis``). Each physical group is
     also one geometrical entity of the same tag.
 
     Raises

@@ -132,7 +132,8 @@ class Polygon:
 
     def area(self) -> float:
         p = self.points
-        s = sum(p[i][0] * p[(i + 1) % len(p)][1] - p[(i + 1) % len(p)][0] * p[i][1] for i in range(len(p)))
+        n = len(p)
+        s = sum(p[i][0] * p[(i + 1) % n][1] - p[(i + 1) % n][0] * p[i][1] for i in range(n))
         return abs(s) / 2
 
     def thickness(self) -> float:

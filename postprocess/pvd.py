@@ -16,7 +16,8 @@ def write_pvd(entries, path) -> Path:
              "  <Collection>"]
     for time_s, vtu in entries:
         rel = Path(vtu).relative_to(path.parent).as_posix()
-        lines.append(f'    <DataSet timestep="{time_s:.9g}" group="" part="0" file={quoteattr(rel)}/>')
+        lines.append(f'    <DataSet timestep="{time_s:.9g}" group="" part="0" '
+                     f'file={quoteattr(rel)}/>')
     lines += ["  </Collection>", "</VTKFile>", ""]
     path.write_text("\n".join(lines), encoding="utf-8")
     return path

@@ -53,7 +53,8 @@ def summary_text(results: dict) -> str:
     depth = f", depth {case['depth_m']} m" if case.get("depth_m") else ""
     mesh = results["mesh"]
     lines.append(f"{case['name']}: {case['geometry']}{depth}; {mesh['elements']} elements, "
-                 f"{mesh['dofs']} unknowns (P{mesh['order']}); solver {results['solver']['backend']}; "
+                 f"{mesh['dofs']} unknowns (P{mesh['order']}); "
+                 f"solver {results['solver']['backend']}; "
                  f"{results['timing_s']['total']:.1f} s")
     if "series" in results:
         lines += series_summary(results["series"])
@@ -75,7 +76,8 @@ def summary_text(results: dict) -> str:
                              f"{_eng(r['current_rms_a'], 'A'):>16}")
         for name, s in sol["sources"].items():
             z = complex(*s["impedance_ohm"])
-            lines.append(f"  source {name}: |Z| {_eng(abs(z), 'ohm')}, R {_eng(s['resistance_ohm'], 'ohm')}, "
+            lines.append(f"  source {name}: |Z| {_eng(abs(z), 'ohm')}, "
+                         f"R {_eng(s['resistance_ohm'], 'ohm')}, "
                          f"L {_eng(s['inductance_h'], 'H')}, P {_eng(s['power_w'], 'W')}, "
                          f"Q {_eng(s['reactive_power_var'], 'var')}")
             extra = []
@@ -83,12 +85,14 @@ def summary_text(results: dict) -> str:
                 extra.append(f"power factor {s['power_factor']:.3f}")
             if s.get("tuning_capacitance_parallel_f"):
                 extra.append(f"tuning capacitor {_eng(s['tuning_capacitance_parallel_f'], 'F')} "
-                             f"across the terminals or {_eng(s['tuning_capacitance_series_f'], 'F')} "
+                             "across the terminals or "
+                             f"{_eng(s['tuning_capacitance_series_f'], 'F')} "
                              "in series")
             if extra:
                 lines.append("    " + ", ".join(extra))
         for name, p in sol["points"].items():
             b = [complex(*c) for c in p["flux_density_t"]]
-            lines.append(f"  point {name}: |B| {_eng((abs(b[0]) ** 2 + abs(b[1]) ** 2) ** 0.5, 'T')}"
+            b_rms = (abs(b[0]) ** 2 + abs(b[1]) ** 2) ** 0.5
+            lines.append(f"  point {name}: |B| {_eng(b_rms, 'T')}"
                          f" (RMS), loss density {_eng(p['loss_density_w_per_m3'], 'W/m3')}")
     return "\n".join(lines)

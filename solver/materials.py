@@ -44,7 +44,8 @@ class Material:
         return skin_depth(frequency_hz, self.conductivity, self.relative_permeability)
 
 
-def skin_depth(frequency_hz: float, conductivity: float, relative_permeability: float = 1.0) -> float:
+def skin_depth(frequency_hz: float, conductivity: float,
+               relative_permeability: float = 1.0) -> float:
     """Skin depth delta = sqrt(2 / (omega mu sigma)) in metres (inf when undefined)."""
     if frequency_hz <= 0 or conductivity <= 0:
         return math.inf
@@ -55,7 +56,8 @@ def skin_depth(frequency_hz: float, conductivity: float, relative_permeability: 
 BUILTIN: dict[str, Material] = {
     m.name: m
     for m in (
-        Material("air", 0.0, 1.0, "vacuum values; air's susceptibility (~4e-7) is negligible (common practice)"),
+        Material("air", 0.0, 1.0,
+                 "vacuum values; air's susceptibility (~4e-7) is negligible (common practice)"),
         Material("vacuum", 0.0, 1.0, "definition"),
         Material("copper", 1 / 1.68e-8, 1.0,
                  "resistivity 1.68e-8 ohm*m at 20 degC, pure annealed copper "
@@ -66,7 +68,8 @@ BUILTIN: dict[str, Material] = {
                  "resistivity 2.65e-8 ohm*m at 20 degC, pure aluminium "
                  "(CRC Handbook of Chemistry and Physics; value from memory)"),
         Material("brass", 16.0e6, 1.0,
-                 "cartridge brass C26000, about 28 % IACS (ASM Handbook vol. 2; value from memory)"),
+                 "cartridge brass C26000, about 28 % IACS "
+                 "(ASM Handbook vol. 2; value from memory)"),
         Material("stainless-304", 1 / 7.2e-7, 1.0,
                  "resistivity 7.2e-7 ohm*m at 20 degC, annealed austenitic AISI 304, "
                  "mu_r about 1.0 (ASM Handbook vol. 1; value from memory)"),

@@ -59,7 +59,8 @@ def slab_step_flux(t, half_thickness, sigma, mu_r, h0, terms=200):
     The diffusion equation dH/dt = (1/(mu sigma)) d2H/dx2 is the heat equation; with
     the surface held at h0 (H. S. Carslaw and J. C. Jaeger, *Conduction of Heat in
     Solids*, 2nd ed., 1959, section 3.3):
-    H(x, t) = h0 [1 - (4/pi) sum (-1)^n/(2n+1) exp(-(2n+1)^2 pi^2 D t / (4 L^2)) cos((2n+1) pi x/(2L))]
+    H(x, t) = h0 [1 - (4/pi) sum (-1)^n/(2n+1) exp(-(2n+1)^2 pi^2 D t / (4 L^2))
+                                                      cos((2n+1) pi x/(2L))]
     and its integral over 0 < x < L gives
     Phi(t) = mu h0 L [1 - sum 8/((2n+1)^2 pi^2) exp(-(2n+1)^2 pi^2 D t / (4 L^2))].
     """

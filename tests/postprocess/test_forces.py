@@ -12,10 +12,18 @@ import numpy as np
 import pytest
 from analytic import MU0
 
-from whorl.meshes import Circle, DomainSpec, Geometry, MeshOptions, Rectangle, RegionSpec, build_mesh
+from whorl.meshes import (
+    Circle,
+    DomainSpec,
+    Geometry,
+    MeshOptions,
+    Rectangle,
+    RegionSpec,
+    build_mesh,
+)
 from whorl.postprocess.forces import shell_force
 from whorl.postprocess.regions import region_totals
-from whorl.solver import BUILTIN, Material, Open, Problem, Stranded, solve_harmonic
+from whorl.solver import BUILTIN, Open, Problem, Stranded, solve_harmonic
 
 CURRENT = 100.0
 SPACING = 0.02  # m

@@ -26,7 +26,8 @@ B0 = 1e-3  # T, RMS
 
 
 def slab_problem(xs, thickness, sigma, mu_r, height, order):
-    tm = tensor_mesh(xs, np.linspace(0, height, 2), {"slab": lambda x, y: np.abs(x) < thickness / 2})
+    tm = tensor_mesh(xs, np.linspace(0, height, 2),
+                     {"slab": lambda x, y: np.abs(x) < thickness / 2})
     return Problem(tm, {"slab": Material("metal", sigma, mu_r), "domain": BUILTIN["air"]},
                    sources=(AppliedField("ext", (0.0, B0)),),
                    boundary={"left": AppliedFieldSide(), "right": AppliedFieldSide(),

@@ -13,7 +13,15 @@ from meshing import graded, tensor_mesh
 
 from whorl.postprocess.probes import probe
 from whorl.postprocess.regions import region_totals
-from whorl.solver import BUILTIN, FluxNormal, Material, Problem, Stranded, skin_depth, solve_harmonic
+from whorl.solver import (
+    BUILTIN,
+    FluxNormal,
+    Material,
+    Problem,
+    Stranded,
+    skin_depth,
+    solve_harmonic,
+)
 
 SIGMA = 5.8e6
 TURNS, CURRENT = 10, 5.0
