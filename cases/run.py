@@ -64,6 +64,27 @@ def loop_description(loop, unit_m) -> dict:
     return out
 
 
+def model_warnings(case, mesh, records) -> list[str]:
+    """What the user should know about the model's validity, in words."""
+    out = []
+    if mesh.kelvin is not None and not case.axisymmetric:
+        for rec in records:
+            currents = [complex(*r["current_a"]) for r in rec["regions"].values()]
+            net = abs(sum(currents))
+            if net > 1e-6 * max([abs(c) for c in currents] + [1e-300]):
+                out.append(f"at {rec['frequency_hz']:g} Hz the model carries a net current of "
+                           f"{net:.4g} A: in a planar model with an open boundary the field of a "
+                           "net current never decays, so inductances and fluxes depend on the "
+                           "exterior mesh; add the return conductor")
+    for rec in records:
+        balance = rec["totals"]["power_balance"]
+        if balance["applies"] and balance["relative_mismatch"] > 1e-6:
+            out.append(f"at {rec['frequency_hz']:g} Hz the terminal power and the field power "
+                       f"differ by {balance['relative_mismatch']:.2e} (relative): do not trust "
+                       "the impedance")
+    return out
+
+
 def solve_case(case, progress=None, mesh=None, folder: Path | None = None):
     """Mesh (unless ``mesh`` is given) and solve ``case``; returns (results, solutions, mesh).
 
@@ -95,6 +116,9 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None):
         points = {p.name: (p.at[0] * case.unit_m, p.at[1] * case.unit_m) for p in case.points}
         body["solutions"] = [solution_record(s, points, loops) for s in solutions]
         timing["postprocess"] = time.perf_counter() - t1
+        body["warnings"] = model_warnings(case, mesh, body["solutions"])
+        for text in body["warnings"]:
+            log.warning(text)
     timing["assemble"] = info["assemble_s"]
     timing["solve"] = info["solve_s"]
     timing["total"] = time.perf_counter() - t0

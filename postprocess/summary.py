@@ -95,4 +95,7 @@ def summary_text(results: dict) -> str:
             b_rms = (abs(b[0]) ** 2 + abs(b[1]) ** 2) ** 0.5
             lines.append(f"  point {name}: |B| {_eng(b_rms, 'T')}"
                          f" (RMS), loss density {_eng(p['loss_density_w_per_m3'], 'W/m3')}")
+    for text in results.get("warnings", []):
+        lines.append("")
+        lines.append(f"WARNING: {text}")
     return "\n".join(lines)
