@@ -55,8 +55,11 @@ def _source(s) -> str:
         drive = f"current {_phasor(s.current)} A RMS"
     elif s.voltage is not None:
         drive = f"voltage {_phasor(s.voltage)} V RMS"
+    elif s.capacitance is not None:
+        drive = (f"capacitor {s.capacitance:g} F charged to {s.initial_voltage:g} V"
+                 + (f" plus a {s.waveform.shape} waveform" if s.waveform is not None else ""))
     else:
-        drive = "waveform (transient)"
+        drive = f"{s.drive} {s.waveform.shape} waveform (transient)"
     extra = (f", {s.turns:g} turns, {s.resistance:g} ohm" if s.kind == "stranded"
              else f", {s.connection}")
     back = f", return {', '.join(_compact(s.return_regions))}" if s.return_regions else ""
