@@ -85,6 +85,12 @@ def parse_case(text: str, path=None, overrides=None) -> Case:
     return case
 
 
+def build_case(text: str, path=None, overrides=None) -> Case:
+    """Like :func:`parse_case` but without trying every ``[sweep]`` value on its own: for
+    building the points of a sweep whose case was already loaded once."""
+    return _build(text, path, dict(overrides or {}))
+
+
 def _toml(text: str) -> dict:
     try:
         return tomllib.loads(text)

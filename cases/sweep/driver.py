@@ -1,0 +1,200 @@
+"""Run a sweep: points in, point folders, store, summary and morning view out.
+
+What a run does
+---------------
+1. Load the case (every sweep value checked) and expand ``[sweep]`` into points.
+2. Take the sweep folder's lock (one runner per folder), open the store and
+   compare the case's fingerprint with the one the sweep started with: a
+   changed case is refused unless ``restart``.
+3. Resume: points already in the store keep their number and results; points
+   left ``running`` by a stopped run become pending again (failed ones too
+   with ``retry_failed``); leftover temporary folders are removed.
+4. Build every point's case and group them (see :mod:`.points`); each group's
+   pending points form one task. A task whose mesh is being built by another
+   task waits for it, so each sized geometry is meshed once.
+5. Run the tasks (:mod:`.local` or :mod:`.cluster`); write each finished
+   point's folder to a temporary name, rename it, and only then mark the point
+   done in the store.
+6. Regenerate ``summary.csv``, the plots and ``report.html`` from the store.
+"""
+
+from __future__ import annotations
+
+import os
+import shutil
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from whorl.cases.errors import CaseError
+from whorl.cases.loader import load_case
+from whorl.cases.output import output_root
+from whorl.cases.sweep.engine import run_tasks
+from whorl.cases.sweep.lock import SweepLock
+from whorl.cases.sweep.meshcache import MeshCache
+from whorl.cases.sweep.morning import write_morning
+from whorl.cases.sweep.points import (
+    DEFAULT_MAX_POINTS,
+    check_count,
+    expand,
+    group_points,
+    point_case,
+)
+from whorl.cases.sweep.store import STORE_NAME, SweepStore, case_fingerprint
+from whorl.cases.sweep.summary import write_summary
+
+
+class SweepConflict(CaseError):
+    """The case changed since the sweep in this folder started."""
+
+
+@dataclass
+class SweepOutcome:
+    """What a sweep run did: ``counts`` by status over all points, ``ran`` and
+    ``failed`` in this run, ``meshed`` meshes built in this run, ``timing_s``
+    (``plan``: building and grouping the point cases; ``run``: the points;
+    ``morning``: summary, plots and report)."""
+
+    folder: Path
+    counts: dict
+    ran: int = 0
+    failed: int = 0
+    meshed: int = 0
+    files: list = field(default_factory=list)
+    timing_s: dict = field(default_factory=dict)
+
+
+def sweep_folder(case, out=None) -> Path:
+    """``OUTPUT/CASE_NAME/sweep``."""
+    return output_root(case, out) / case.name / "sweep"
+
+
+def load_sweep(path, overrides=None, max_points: int = DEFAULT_MAX_POINTS):
+    """The case and its points (list of override dicts), checked."""
+    overrides = dict(overrides or {})
+    case = load_case(path, overrides)
+    if case.sweep is None:
+        raise CaseError("sweep", "the case has no [sweep] table: add one, e.g. "
+                                 "[sweep] freq = [\"1 kHz\", \"3 kHz\"]")
+    for name in overrides:
+        if name in case.sweep.axes:
+            raise CaseError(f"--set {name}", f"{name} is swept by the [sweep] table; "
+                                             "remove it from --set or from the sweep")
+    specs = expand(case.sweep)
+    check_count(len(specs), max_points)
+    return case, specs
+
+
+def run_sweep(path, overrides=None, out=None, workers: int | None = None, scheduler=None,
+              point_timeout: float | None = None, retry_failed: bool = False,
+              restart: bool = False, max_points: int = DEFAULT_MAX_POINTS, progress=None,
+              runner=None) -> SweepOutcome:
+    """Run (or resume) the sweep of the case file at ``path``.
+
+    Parameters
+    ----------
+    path : str or Path
+        The case file; it must have a ``[sweep]`` table.
+    overrides : dict, optional
+        ``--set`` values applied to every point.
+    out : path, optional
+        Output folder (``--out``); the sweep writes ``OUT/CASE_NAME/sweep``.
+    workers : int, optional
+        Local worker processes (default: all cores).
+    scheduler : str or distributed.Client, optional
+        Dask scheduler address: run the points on that cluster instead.
+    point_timeout : float, optional
+        Seconds a point may run (a task of k points: k times as long).
+    retry_failed, restart : bool
+        Run failed points again; discard the folder's sweep and start anew.
+    max_points : int
+        Refuse larger sweeps.
+    progress : callable, optional
+        ``progress(event)`` with a dict: ``total`` (points to run), ``done``,
+        ``failed``.
+    runner : object, optional
+        A ready runner (``free``, ``busy``, ``submit``, ``wait``, ``close``).
+
+    Returns
+    -------
+    SweepOutcome
+    """
+    overrides = dict(overrides or {})
+    case, specs = load_sweep(path, overrides, max_points)
+    folder = sweep_folder(case, out)
+    folder.mkdir(parents=True, exist_ok=True)
+    with SweepLock(folder):
+        if restart:
+            _clear(folder)
+        store = SweepStore(folder / STORE_NAME)
+        try:
+            _check_fingerprint(store, case, overrides)
+            return _run(store, case, specs, folder, overrides, workers, scheduler,
+                        point_timeout, retry_failed, progress, runner)
+        finally:
+            store.close()
+
+
+def _check_fingerprint(store, case, overrides) -> None:
+    fingerprint = case_fingerprint(case, overrides)
+    old = store.get("fingerprint")
+    if old is None:
+        from whorl import __version__
+        store.set(fingerprint=fingerprint, case_name=case.name, case_path=case.path,
+                  axes=",".join(case.sweep.axes), whorl_version=__version__)
+    elif old != fingerprint:
+        done = store.counts()["done"]
+        raise SweepConflict("case", f"the case (outside its [sweep] table) or the --set values "
+                                    f"changed since this sweep started in {store.path.parent}, "
+                                    f"so its {done} finished points would not match new ones; "
+                                    "restore the case, or run again with --restart to discard "
+                                    "them and start over")
+    store.set(axes=",".join(case.sweep.axes))
+
+
+def _run(store, case, specs, folder, overrides, workers, scheduler, point_timeout,
+         retry_failed, progress, runner) -> SweepOutcome:
+    t0 = time.perf_counter()
+    numbers = store.sync_points(specs)
+    store.requeue(retry_failed)
+    points_dir = folder / "points"
+    points_dir.mkdir(exist_ok=True)
+    for stale in points_dir.glob(".*"):
+        shutil.rmtree(stale, ignore_errors=True)
+    text = Path(case.path).read_text(encoding="utf-8")
+    status = {p["point"]: p["status"] for p in store.points()}
+    cases = {}
+    for number, spec in zip(numbers, specs, strict=True):
+        try:
+            cases[number] = point_case(text, case.path, {**overrides, **spec})
+        except CaseError as exc:
+            if status[number] == "pending":
+                store.mark_failed(number, f"bad input: {exc}")
+    groups = group_points(cases)
+    tasks = []
+    for group in groups:
+        for n in group.numbers:
+            store.set_params(n, cases[n].parameters, group.mesh_key)
+        todo = [n for n in group.numbers if status[n] == "pending"]
+        if todo:
+            tasks.append((group, todo))
+    t1 = time.perf_counter()
+    report = run_tasks(tasks, cases, text, store, folder, workers, scheduler, point_timeout,
+                       progress, runner, MeshCache(folder / "mesh-cache"))
+    t2 = time.perf_counter()
+    files = [write_summary(store.points(), list(case.sweep.axes), folder / "summary.csv")]
+    files += write_morning(case, store.points(), list(case.sweep.axes), folder)
+    timing = {"plan": t1 - t0, "run": t2 - t1, "morning": time.perf_counter() - t2}
+    return SweepOutcome(folder, store.counts(), report["ran"], report["failed"],
+                        report["meshed"], files, timing)
+
+
+def _clear(folder: Path) -> None:
+    """Discard a sweep folder's results (``--restart``), keeping its lock file."""
+    for entry in folder.iterdir():
+        if entry.name == SweepLock.NAME:
+            continue
+        if entry.is_dir():
+            shutil.rmtree(entry)
+        else:
+            os.remove(entry)

@@ -1,0 +1,81 @@
+"""The sweep's main numbers and ``summary.csv``, regenerated from the store.
+
+Columns: ``point``, ``status``, ``error``, the point's parameters (SI; the
+swept ones first), ``frequency_hz``, then the main numbers of each solution:
+``total_loss_w``; per region ``region.NAME.loss_w`` and
+``region.NAME.current_rms_a``; per source ``source.NAME.impedance_re_ohm``,
+``.impedance_im_ohm``, ``.resistance_ohm``, ``.inductance_h``; per loop
+``loop.NAME.emf_re_v``, ``.emf_im_v`` and ``.emf_rms_v`` (magnitude). A point
+with a frequency list has one row per frequency; a failed point has one row
+with its error and no numbers.
+"""
+
+from __future__ import annotations
+
+import csv
+import math
+import os
+from pathlib import Path
+
+FIXED = ("point", "status", "error")
+
+
+def main_numbers(record: dict) -> dict:
+    """The main numbers of one solution record of ``results.json`` (flat, SI)."""
+    out = {"frequency_hz": record["frequency_hz"],
+           "total_loss_w": record["totals"]["loss_w"]}
+    for name, r in record.get("regions", {}).items():
+        out[f"region.{name}.loss_w"] = r["loss_w"]
+        out[f"region.{name}.current_rms_a"] = r["current_rms_a"]
+    for name, s in record.get("sources", {}).items():
+        re, im = s["impedance_ohm"]
+        out[f"source.{name}.impedance_re_ohm"] = re
+        out[f"source.{name}.impedance_im_ohm"] = im
+        out[f"source.{name}.resistance_ohm"] = s["resistance_ohm"]
+        out[f"source.{name}.inductance_h"] = s["inductance_h"]
+    for name, lp in record.get("loops", {}).items():
+        re, im = lp["emf_v"]
+        out[f"loop.{name}.emf_re_v"] = re
+        out[f"loop.{name}.emf_im_v"] = im
+        out[f"loop.{name}.emf_rms_v"] = math.hypot(re, im)
+    return out
+
+
+def summary_rows(points: list[dict], axes: list[str]) -> tuple[list[str], list[dict]]:
+    """Header and rows (dicts) of the summary table from the store's points."""
+    params: list[str] = list(axes)
+    numbers: list[str] = []
+    for p in points:
+        params += [n for n in (p.get("params_si") or {}) if n not in params]
+        for sol in (p.get("rows") or []) if p["status"] == "done" else []:
+            numbers += [n for n in sol if n != "frequency_hz" and n not in numbers]
+    column = {n: f"parameter.{n}" if n in (*FIXED, "frequency_hz") else n for n in params}
+    rows = []
+    for p in points:
+        si = p.get("params_si") or {}
+        given = p.get("overrides") or {}
+        base = {"point": p["point"], "status": p["status"], "error": p["error"] or ""}
+        base.update({column[n]: si.get(n, given.get(n)) for n in params})
+        sols = p.get("rows") if p["status"] == "done" else None
+        rows += [{**base, **sol} for sol in sols or [{}]]
+    return [*FIXED, *column.values(), "frequency_hz", *numbers], rows
+
+
+def write_summary(points: list[dict], axes: list[str], path) -> Path:
+    """Write ``summary.csv`` (atomically: a temporary name, then a rename)."""
+    path = Path(path)
+    header, rows = summary_rows(points, axes)
+    tmp = path.with_name(f".{path.name}.{os.getpid()}.tmp")
+    with open(tmp, "w", newline="", encoding="utf-8") as f:
+        writer = csv.DictWriter(f, fieldnames=header, extrasaction="ignore")
+        writer.writeheader()
+        for row in rows:
+            writer.writerow({k: _cell(v) for k, v in row.items()})
+    os.replace(tmp, path)
+    return path
+
+
+def _cell(value):
+    if isinstance(value, float):
+        return repr(value)
+    return "" if value is None else value
