@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from whorl.cases.cli.common import add_case_args
 from whorl.cases.loader import load_case
 from whorl.cases.parameters import parse_set_args
 from whorl.cases.read_sweep import sweep_size
@@ -10,9 +11,7 @@ HELP = "validate a case file without solving; print what it contains"
 
 
 def add_args(parser) -> None:
-    parser.add_argument("case", metavar="CASE", help="case file (TOML)")
-    parser.add_argument("--set", dest="overrides", action="append", default=[],
-                        metavar="NAME=VALUE", help="override a parameter (repeatable)")
+    add_case_args(parser, out=False, quiet=None)
 
 
 def handle(args) -> int:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 from whorl.cases import model
+from whorl.cases.cli.common import add_case_args
 from whorl.cases.loader import load_case
 from whorl.cases.output import output_root, staged_folder
 from whorl.cases.parameters import parse_set_args
@@ -15,11 +16,7 @@ HELP = "mesh a case only: mesh.msh (gmsh 4.1 binary, case length unit), mesh.png
 
 
 def add_args(parser) -> None:
-    parser.add_argument("case", help="the case file (TOML)")
-    parser.add_argument("--out", metavar="FOLDER", help="output folder (overrides [output] folder)")
-    parser.add_argument("--set", dest="overrides", action="append", default=[],
-                        metavar="NAME=VALUE", help="override a parameter")
-    parser.add_argument("-q", "--quiet", action="store_true", help="no progress messages")
+    add_case_args(parser)
 
 
 def handle(args) -> int:

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from whorl.cases.cli.common import add_case_args
 from whorl.cases.loader import load_case
 from whorl.cases.output import output_root
 from whorl.cases.parameters import parse_set_args
@@ -13,11 +14,7 @@ HELP = "mesh, solve and write results (results.json, tables, log) for a case fil
 
 
 def add_args(parser) -> None:
-    parser.add_argument("case", help="the case file (TOML)")
-    parser.add_argument("--out", metavar="FOLDER", help="output folder (overrides [output] folder)")
-    parser.add_argument("--set", dest="overrides", action="append", default=[],
-                        metavar="NAME=VALUE", help="override a parameter, e.g. freq=\"10 kHz\"")
-    parser.add_argument("-q", "--quiet", action="store_true", help="no progress messages")
+    add_case_args(parser)
 
 
 def handle(args) -> int:

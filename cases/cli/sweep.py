@@ -6,6 +6,7 @@ import argparse
 import os
 import sys
 
+from whorl.cases.cli.common import add_case_args
 from whorl.cases.parameters import parse_set_args
 from whorl.cases.run import CAUTION
 from whorl.cases.sweep import DEFAULT_MAX_POINTS, run_sweep, sweep_status
@@ -44,13 +45,12 @@ def _positive_float(text: str) -> float:
 def add_args(parser) -> None:
     parser.formatter_class = argparse.RawDescriptionHelpFormatter
     parser.epilog = EPILOG
-    parser.add_argument("case", help="the case file (TOML) with a [sweep] table")
-    parser.add_argument("--out", metavar="FOLDER", help="output folder (overrides [output] folder)")
+    add_case_args(parser, "the case file (TOML) with a [sweep] table", quiet="no progress bar")
     parser.add_argument("--workers", type=_positive_int, metavar="N",
                         help=f"local worker processes (default: all cores, {os.cpu_count()})")
     parser.add_argument("--scheduler", metavar="ADDRESS",
                         help="send the points to a running Dask cluster, e.g. "
-                             "tcp://10.0.0.5:8786 (needs: pip install 'whorl[cluster]')")
+                             "tcp://HOST:8786 (needs: pip install 'whorl[cluster]')")
     parser.add_argument("--point-timeout", type=_positive_float, metavar="SECONDS",
                         help="stop a point that runs longer and record it as failed")
     parser.add_argument("--retry-failed", action="store_true",
@@ -62,9 +62,6 @@ def add_args(parser) -> None:
     parser.add_argument("--max-points", type=_positive_int, default=DEFAULT_MAX_POINTS,
                         metavar="N", help=f"refuse sweeps with more points (default "
                                           f"{DEFAULT_MAX_POINTS})")
-    parser.add_argument("--set", dest="overrides", action="append", default=[],
-                        metavar="NAME=VALUE", help="override a parameter for every point")
-    parser.add_argument("-q", "--quiet", action="store_true", help="no progress bar")
 
 
 class _Bar:
