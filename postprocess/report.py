@@ -175,6 +175,24 @@ def _points(sol) -> str:
     return _table("Points", ("point", "|B| (RMS)", "|J| (RMS)", "loss density"), rows)
 
 
+def _derived(sol) -> str:
+    """Skin depths, heating efficiency and the tuning capacitors."""
+    derived = sol.get("derived", {})
+    rows = [[_name(f"skin depth in {name}"), _num(d, "m")]
+            for name, d in derived.get("skin_depth_m", {}).items()]
+    eff = derived.get("heating_efficiency")
+    if eff is not None and sol.get("sources"):
+        rows.append([_name("heating efficiency (loss outside any source / all losses)"),
+                     f'<td class="num">{100 * eff:.1f} %</td>'])
+    for name, s in sol.get("sources", {}).items():
+        if s.get("tuning_capacitance_parallel_f"):
+            rows.append([_name(f"{name}: capacitor across the terminals for resonance"),
+                         _num(s["tuning_capacitance_parallel_f"], "F")])
+            rows.append([_name(f"{name}: capacitor in series for resonance"),
+                         _num(s["tuning_capacitance_series_f"], "F")])
+    return _table("Derived numbers", ("quantity", "value"), rows) if rows else ""
+
+
 def _solution(sol, axisym) -> list[str]:
     f = sol.get("frequency_hz", 0.0)
     title = "Static solution (0 Hz)" if f == 0 else f"At {format_si(f, 'Hz')}"
@@ -185,6 +203,7 @@ def _solution(sol, axisym) -> list[str]:
            _regions(sol, axisym)]
     if sol.get("sources"):
         out.append(_sources(sol))
+    out.append(_derived(sol))
     if sol.get("loops"):
         out.append(_loops(sol))
     if sol.get("points"):
@@ -242,8 +261,12 @@ def write_report(results: dict, images: dict | None, path, tables: dict | None =
             '<section class="caution"><h2>Caution</h2><ul>'
             + "".join(f"<li>{_e(c)}</li>" for c in CAUTIONS) + "</ul>"
             + (f"<p>{_e(results['caution'])}</p>" if results.get("caution") else "")
-            + "</section>",
-            "<h2>Case</h2>"]
+            + "</section>"]
+    if results.get("warnings"):
+        body.append('<section class="caution"><h2>Warnings about this model</h2><ul>'
+                    + "".join(f"<li>{_e(w)}</li>" for w in results["warnings"])
+                    + "</ul></section>")
+    body.append("<h2>Case</h2>")
     if case.get("notes"):
         body.append(f"<p>{_e(case['notes'])}</p>")
     body.append(_key_values("Parameters (SI)", list(results.get("parameters", {}).items()),
@@ -259,7 +282,8 @@ def write_report(results: dict, images: dict | None, path, tables: dict | None =
     for sol in results.get("solutions", []):
         body.extend(_solution(sol, axisym))
     if "series" in results:
-        body.append("<h2>Time series</h2><p>The time series are in results.json.</p>")
+        body.append("<h2>Time series</h2><p>Every step is in results.json (block "
+                    "<code>series</code>) and in the series_*.csv tables.</p>")
     if images:
         body.append("<h2>Pictures</h2>")
         body.extend(_image(caption, p) for caption, p in images.items())
