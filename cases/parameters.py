@@ -112,6 +112,19 @@ def si_values(params: Mapping) -> dict:
     return {name: to_si(value) for name, value in params.items()}
 
 
+_SI_LABELS = ("m", "Hz", "s", "A", "V", "W", "S/m", "ohm*m", "ohm", "T", "Wb", "H", "F", "rad")
+
+
+def si_unit(value) -> str:
+    """The SI unit of a resolved parameter as :func:`si_values` gives it ("" if none known)."""
+    if not isinstance(value, Quantity):
+        return ""
+    for label in _SI_LABELS:
+        if value.dimensionality == Quantity(1.0, label).dimensionality:
+            return "rad" if label == "rad" else label
+    return ""
+
+
 def parse_set_args(items) -> dict:
     """Turn ``["freq=10 kHz", "coil_gap=4"]`` into ``{"freq": "10 kHz", "coil_gap": "4"}``.
 

@@ -19,6 +19,7 @@ from pathlib import Path
 from matplotlib.backends.backend_agg import FigureCanvasAgg
 from matplotlib.figure import Figure
 
+from whorl.cases.parameters import resolve, si_unit
 from whorl.cases.run import CAUTION
 from whorl.cases.sweep.summary import summary_rows
 
@@ -56,8 +57,9 @@ def _order(value):
 
 
 def plot_quantity(records: list[dict], quantity: str, axes: list[str], mode: str, path,
-                  dpi: int = 110) -> Path:
-    """PNG of ``quantity`` against each parameter in ``axes`` (one panel each)."""
+                  dpi: int = 110, units: dict | None = None) -> Path:
+    """PNG of ``quantity`` against each parameter in ``axes`` (one panel each); ``units``
+    names the SI unit of each parameter for the axis labels."""
     fig = Figure(figsize=(5.2 * len(axes), 3.8), layout="constrained")
     FigureCanvasAgg(fig)
     panels = fig.subplots(1, len(axes), squeeze=False)[0]
@@ -73,12 +75,14 @@ def plot_quantity(records: list[dict], quantity: str, axes: list[str], mode: str
                          if (series is None or r.get(series) == key)
                          and r.get(x) is not None and r.get(quantity) is not None)
             if pts:
-                label = None if series is None else f"{series} = {_fmt(key)}"
+                unit = (units or {}).get(series, "")
+                label = None if series is None else f"{series} = {_fmt(key)} {unit}".rstrip()
                 ax.plot([p[0] for p in pts], [p[1] for p in pts], marker="o", label=label)
         xs = [r[x] for r in chosen if isinstance(r.get(x), float | int)]
         if xs and min(xs) > 0 and max(xs) / min(xs) > 20:
             ax.set_xscale("log")
-        ax.set_xlabel(f"{x} (SI)")
+        unit = (units or {}).get(x, "")
+        ax.set_xlabel(f"{x} [{unit}]" if unit else x)
         ax.set_ylabel(quantity)
         ax.grid(True, alpha=0.3)
         if fixed:
@@ -100,12 +104,14 @@ def write_morning(case, points: list[dict], axes: list[str], folder) -> list[Pat
         if per_point:
             axes.append("frequency_hz")
     images: list[tuple[str, Path]] = []
+    units = {name: si_unit(v) for name, v in resolve(case.document.get("parameters", {})).items()}
+    units["frequency_hz"] = "Hz"
     if records:
         (folder / "plots").mkdir(exist_ok=True)
         for q in main_quantities(records):
             name = "".join(c if c.isalnum() or c in "-_." else "_" for c in q)
             path = folder / "plots" / f"{name}.png"
-            plot_quantity(records, q, axes, case.sweep.mode, path)
+            plot_quantity(records, q, axes, case.sweep.mode, path, units=units)
             images.append((q, path))
     report = write_report(case, points, list(case.sweep.axes), images, folder / "report.html")
     return [p for _, p in images] + [report]
