@@ -186,7 +186,7 @@ def _build(text: str, path, overrides: dict) -> Case:
     return Case(
         name=info.name, title=info.title, notes=info.notes,
         geometry_kind=model.geometry, length_unit=model.length_unit, unit_m=model.unit_m,
-        depth_m=model.depth_m, order=model.order,
+        depth_m=model.depth_m, order=model.order, solver=model.solver,
         parameters=si_values(ctx.params), materials=materials,
         region_material=region_material, geometry=geometry, boundary=domain.boundary,
         sources=sources, shorted=shorted, study=study,

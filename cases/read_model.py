@@ -9,6 +9,7 @@ from whorl.cases.errors import CaseError
 from whorl.cases.reader import Table
 from whorl.cases.units import length_unit_metres
 from whorl.meshes.geometry import MeshOptions
+from whorl.solver import linalg
 
 SLUG = re.compile(r"^[A-Za-z0-9_-]+$")
 GEOMETRIES = ("planar", "axisymmetric")
@@ -32,6 +33,7 @@ class ModelInfo:
     unit_m: float
     depth_m: float
     order: int
+    solver: str = "auto"
 
     @property
     def axisymmetric(self) -> bool:
@@ -50,12 +52,13 @@ def read_case(table: Table, default_name: str) -> CaseInfo:
 
 def read_model(table: Table) -> ModelInfo:
     """``[model]``: ``geometry`` (default planar), ``length_unit`` (default mm),
-    ``depth`` (planar only, SI metres when bare; default 1 m), ``order`` (1 or 2, default 2).
+    ``depth`` (planar only, SI metres when bare; default 1 m), ``order`` (1 or 2, default 2),
+    ``solver`` (a linear solver backend by name, default ``"auto"``: the fastest installed).
 
     ``length_unit`` is read first so that ``depth`` may be written as an
     expression of parameters.
     """
-    table.allow({"geometry", "length_unit", "depth", "order"})
+    table.allow({"geometry", "length_unit", "depth", "order", "solver"})
     geometry = table.string("geometry", "planar", GEOMETRIES)
     unit = table.string("length_unit", "mm")
     try:
@@ -69,7 +72,12 @@ def read_model(table: Table) -> ModelInfo:
     order = table.integer("order", 2)
     if order not in (1, 2):
         raise table.error("order", f"the element order is 1 or 2, got {order}")
-    return ModelInfo(geometry, unit, unit_m, depth, order)
+    known = ("auto", *linalg.BACKENDS)
+    solver = table.string("solver", "auto")
+    if solver not in known:
+        raise table.error("solver", f"unknown linear solver {solver!r}; known: "
+                                    f"{', '.join(known)}")
+    return ModelInfo(geometry, unit, unit_m, depth, order, solver)
 
 
 def read_mesh(table: Table | None, order: int) -> MeshOptions:

@@ -109,7 +109,8 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None):
             body["snapshots"] = [str(Path(f).relative_to(folder)) for f in files]
         timing["postprocess"] = 0.0
     else:
-        solutions, info = solve_harmonic(problem, list(case.study.frequencies), progress=say)
+        solutions, info = solve_harmonic(problem, list(case.study.frequencies),
+                                         backend=case.solver, progress=say)
         system = solutions[0].system
         say("postprocessing")
         t1 = time.perf_counter()
@@ -125,7 +126,8 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None):
     results = {
         "format": 1,
         "whorl_version": __version__,
-        "case": {"name": case.name, "title": case.title, "geometry": case.geometry_kind,
+        "case": {"name": case.name, "title": case.title, "notes": case.notes,
+                 "geometry": case.geometry_kind,
                  "depth_m": None if case.axisymmetric else case.depth_m,
                  "length_unit": case.length_unit, "study": case.study.kind},
         "parameters": dict(case.parameters),

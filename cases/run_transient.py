@@ -9,6 +9,7 @@ from whorl.postprocess.pvd import write_pvd
 from whorl.postprocess.series import SeriesRecorder
 from whorl.postprocess.tables import write_csv
 from whorl.postprocess.vtu import write_fields_vtu
+from whorl.solver import linalg
 from whorl.solver.system import assemble
 from whorl.solver.transient import march
 
@@ -28,8 +29,9 @@ def solve_transient(case, problem, loops, say, folder: Path | None):
     if folder is not None and case.output.fields:
         (folder / "snapshots").mkdir()
     t1 = time.perf_counter()
+    backend = linalg.choose(case.solver)[0]
     for n, state in enumerate(march(system, study.end_s, study.step_s, study.scheme,
-                                    progress=say)):
+                                    backend=backend, progress=say)):
         recorder.add(state)
         if folder is not None and case.output.fields and n % study.save_every == 0:
             path = write_fields_vtu(state, folder / "snapshots" / f"step_{n:06d}.vtu")
@@ -37,7 +39,7 @@ def solve_transient(case, problem, loops, say, folder: Path | None):
     if snapshots:
         files = [p for _, p in snapshots] + [write_pvd(snapshots, folder / "snapshots.pvd")]
     info = {"assemble_s": t_asm, "solve_s": time.perf_counter() - t1, "system": system,
-            "unknowns": int(system.size - system.fixed.size), "backend": "scipy-superlu"}
+            "unknowns": int(system.size - system.fixed.size), "backend": backend}
     return recorder.record(), files, info
 
 

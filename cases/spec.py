@@ -73,7 +73,8 @@ class Case:
     ``geometry`` holds regions and domain in the length unit (``unit_m`` metres
     each) with no skin depths yet; ``region_material`` names the material of
     every region and of the background under the key ``"domain"``;
-    ``materials`` holds every material used, by material name.
+    ``materials`` holds every material used, by material name; ``solver``
+    names the linear solver backend (``"auto"``: the fastest installed one).
     """
 
     name: str
@@ -99,6 +100,7 @@ class Case:
     sweep: SweepSpec | None = None
     path: Path | None = None
     document: dict = field(default_factory=dict)
+    solver: str = "auto"  # linear solver backend by name (whorl.solver.linalg)
 
     @property
     def axisymmetric(self) -> bool:

@@ -20,7 +20,6 @@ from whorl.postprocess.probes import probe
 from whorl.postprocess.regions import region_totals
 from whorl.solver.sources import Stranded
 
-
 log = logging.getLogger(__name__)
 
 
@@ -79,8 +78,9 @@ def point_record(p, k: int) -> dict:
 
 
 def loop_record(lp) -> dict:
-    return {"turns": lp.turns, "flux_wb": pair(lp.flux_wb), "flux_from_b_wb": pair(lp.flux_from_b_wb),
-            "emf_v": pair(lp.emf_v), "emf_from_e_v": pair(lp.emf_from_e_v)}
+    return {"turns": lp.turns, "flux_wb": pair(lp.flux_wb),
+            "flux_from_b_wb": pair(lp.flux_from_b_wb), "emf_v": pair(lp.emf_v),
+            "emf_from_e_v": pair(lp.emf_from_e_v)}
 
 
 def loop_result(solution, loop: dict, surface: bool = True):

@@ -20,11 +20,14 @@ def solve_system(system, frequencies, backend: str = "auto", progress=None):
     """Solve an assembled system at each frequency in Hz (0 gives the static solution).
 
     Returns ``(solutions, info)`` where ``info`` has the backend's name and
-    the time spent factorising and solving.
+    the time spent factorising and solving. Assembly and reduction are done once;
+    a backend that can (``linalg.session``) also analyses the sparsity pattern once
+    and only refactorises numerically at the next frequency.
     """
     name, factorize = linalg.choose(backend)
+    factorize = linalg.session(factorize)  # keeps the symbolic analysis across frequencies
     red = reduce(system)
-    solutions = []
+    solutions, convergence = [], []
     t0 = time.perf_counter()
     for i, f in enumerate(frequencies):
         omega = 2 * np.pi * float(f)
@@ -33,13 +36,18 @@ def solve_system(system, frequencies, backend: str = "auto", progress=None):
         _check_static(system, omega)
         solve = factorize(red.matrix(1.0, 1j * omega))
         x = red.expand(solve(red.rhs(system.rhs(omega), 1.0, 1j * omega)))
+        if getattr(solve, "report", None):  # an iterative backend: steps and residual
+            convergence.append({"frequency_hz": float(f), **solve.report})
         if not np.all(np.isfinite(x)):
             raise SolveError(f"the solution at {f:g} Hz is not finite: the system is singular "
                              "(a region floats or a source is not tied to anything)")
         solutions.append(Solution(system, float(f), x))
     elapsed = time.perf_counter() - t0
     log.info("solved %d frequencies with %s in %.2f s", len(frequencies), name, elapsed)
-    return solutions, {"backend": name, "solve_s": elapsed, "unknowns": int(red.free.size)}
+    info = {"backend": name, "solve_s": elapsed, "unknowns": int(red.free.size)}
+    if convergence:
+        info["convergence"] = convergence
+    return solutions, info
 
 
 def solve_harmonic(problem, frequencies, backend: str = "auto", progress=None):

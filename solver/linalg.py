@@ -1,27 +1,55 @@
 """Sparse direct solvers behind one small interface, registered by name.
 
 A backend is a factory ``factorize(matrix) -> solve`` where ``solve(rhs)``
-returns the solution; the matrix is complex CSC. ``"auto"`` picks the first
-available backend in ``PREFERENCE``.
+returns the solution; the matrix is complex CSC (or CSR). ``"auto"`` picks the
+first available backend in ``PREFERENCE``. A backend may also offer
+``factorize.session()``: a factory of the same shape that keeps what it can
+(the symbolic analysis) between matrices of one sparsity pattern, as a
+frequency list has; a ``solve`` it returned is valid until its next call.
+
+Backends (factor + solve measured on whorl's P2 systems, see docs/performance.md):
+
+- ``"pardiso"``: the sparse direct solver of Intel's oneMKL, called through its
+  C interface with ctypes from the ``mkl`` wheel (``pip install "whorl[fast]"``),
+  complex symmetric (matrix type 6) when the matrix is symmetric, complex
+  unsymmetric (type 13) otherwise; OpenMP threads on the available cores.
+- ``"scipy-superlu"``: SciPy's SuperLU, always there, the fallback.
+- ``"iterative"`` (:mod:`.iterative`): preconditioned Krylov for models too large
+  to factorise; never chosen by ``"auto"``.
 """
 
 from __future__ import annotations
 
+import ctypes
+import glob
+import logging
+import os
+import sys
+import weakref
+
+import numpy as np
+import scipy.sparse as sp
 import scipy.sparse.linalg as spla
 from threadpoolctl import threadpool_limits
 
 from whorl.solver.errors import SolveError
 
+log = logging.getLogger(__name__)
+
 BACKENDS: dict[str, object] = {}
 PREFERENCE: list[str] = []
 
 
-def register_backend(name: str, available=lambda: True, preferred: bool = False):
-    """Decorator: register ``factorize`` under ``name``."""
+def register_backend(name: str, available=lambda: True, preferred: bool = False,
+                     auto: bool = True):
+    """Decorator: register ``factorize`` under ``name``; ``preferred`` puts it first in
+    ``PREFERENCE``, ``auto=False`` leaves it out of ``"auto"``'s choice."""
 
     def wrap(factorize):
         factorize.available = available
         BACKENDS[name] = factorize
+        if not auto:
+            return factorize
         if preferred:
             PREFERENCE.insert(0, name)
         else:
@@ -29,6 +57,11 @@ def register_backend(name: str, available=lambda: True, preferred: bool = False)
         return factorize
 
     return wrap
+
+
+def _singular(detail) -> SolveError:
+    return SolveError(f"the system is singular ({detail}): a region floats or a source "
+                      "is not tied to anything")
 
 
 @register_backend("scipy-superlu")
@@ -42,14 +75,209 @@ def superlu(matrix):
         with threadpool_limits(limits=1, user_api="blas"):
             lu = spla.splu(matrix.tocsc(), permc_spec="COLAMD")
     except RuntimeError as exc:  # "Factor is exactly singular"
-        raise SolveError(f"the system is singular ({exc}): a region floats or a source "
-                         "is not tied to anything") from exc
+        raise _singular(exc) from exc
 
     def solve(rhs):
         with threadpool_limits(limits=1, user_api="blas"):
             return lu.solve(rhs)
 
     return solve
+
+
+# ---------------------------------------------------------------------------- PARDISO
+
+_MKL = None
+
+
+def _mkl():
+    """oneMKL's single dynamic library (``libmkl_rt``) from the ``mkl`` wheel, or None."""
+    global _MKL
+    if _MKL is None:
+        names = []
+        for root in dict.fromkeys((sys.prefix, sys.base_prefix)):
+            names += sorted(glob.glob(os.path.join(root, "lib", "libmkl_rt.so*")))
+        names += ["libmkl_rt.so.3", "libmkl_rt.so.2", "libmkl_rt.so"]
+        # Idle OpenMP threads yield at once instead of spinning: several whorl processes
+        # may share the cores (sweeps), and spinning threads then starve the others.
+        os.environ.setdefault("KMP_BLOCKTIME", "0")
+        _MKL = False
+        for name in names:
+            try:
+                lib = ctypes.CDLL(name)
+                lib.pardiso  # noqa: B018 - the symbol must be there
+            except (OSError, AttributeError):
+                continue
+            _MKL = lib
+            break
+    return _MKL or None
+
+
+def pardiso_available() -> bool:
+    return _mkl() is not None
+
+
+def is_symmetric(matrix, rtol: float = 1e-10) -> bool:
+    """Whether ``matrix`` equals its (plain, not conjugate) transpose, tested cheaply:
+    A y against A^T y for a random y (an unsymmetric part shows with probability 1)."""
+    if matrix.shape[0] != matrix.shape[1]:
+        return False
+    y = np.random.default_rng(12345).standard_normal(matrix.shape[0])
+    ay, aty = matrix @ y, matrix.T @ y
+    scale = np.abs(ay).max() if ay.size else 0.0
+    return bool(np.abs(ay - aty).max() <= rtol * scale) if scale > 0 else True
+
+
+_ERRORS = {-1: "input inconsistent", -2: "not enough memory", -3: "reordering problem",
+           -4: "zero pivot", -5: "unclassified internal error", -6: "reordering failed",
+           -7: "diagonal matrix is singular", -8: "32-bit integer overflow",
+           -9: "not enough memory for the out-of-core solver", -10: "problems with "
+           "opening the out-of-core files", -11: "read/write problems with the "
+           "out-of-core files"}
+
+
+class _Pardiso:
+    """One PARDISO handle: analysis once per sparsity pattern, factorisation per matrix."""
+
+    def __init__(self, threads: int | None = None):
+        self.lib = _mkl()
+        self.pt = np.zeros(64, dtype=np.int64)
+        self.iparm = np.zeros(64, dtype=np.int32)
+        self.pattern = None
+        self.mtype = None
+        self.n = 0
+        self.threads = threads or len(os.sched_getaffinity(0))
+        self._finalizer = weakref.finalize(self, _release, self.lib, self.pt, self.iparm)
+
+    def _call(self, phase, a, ia, ja, nrhs=1, b=None, x=None):
+        n = ctypes.c_int32(self.n)
+        err = ctypes.c_int32(0)
+        one = ctypes.c_int32(1)
+        dummy = np.zeros(2, dtype=np.complex128)
+        b = dummy if b is None else b
+        x = dummy if x is None else x
+        self.lib.MKL_Domain_Set_Num_Threads(ctypes.c_int(self.threads), ctypes.c_int(4))
+        self.lib.pardiso(self.pt.ctypes.data_as(ctypes.c_void_p), ctypes.byref(one),
+                         ctypes.byref(one), ctypes.byref(ctypes.c_int32(self.mtype)),
+                         ctypes.byref(ctypes.c_int32(phase)), ctypes.byref(n),
+                         a.ctypes.data_as(ctypes.c_void_p), ia.ctypes.data_as(ctypes.c_void_p),
+                         ja.ctypes.data_as(ctypes.c_void_p), ctypes.c_void_p(None),
+                         ctypes.byref(ctypes.c_int32(nrhs)),
+                         self.iparm.ctypes.data_as(ctypes.c_void_p),
+                         ctypes.byref(ctypes.c_int32(0)),
+                         b.ctypes.data_as(ctypes.c_void_p), x.ctypes.data_as(ctypes.c_void_p),
+                         ctypes.byref(err))
+        if err.value != 0:
+            what = _ERRORS.get(err.value, "unknown error")
+            if err.value in (-4, -7):
+                raise _singular(f"PARDISO: {what}")
+            raise SolveError(f"PARDISO failed in phase {phase}: {what} (error {err.value})")
+
+    def factorize(self, matrix):
+        symmetric = is_symmetric(matrix)
+        mtype = 6 if symmetric else 13
+        if symmetric:
+            n = matrix.shape[0]
+            # the upper triangle with every diagonal entry stored (PARDISO asks for it)
+            upper = sp.triu(matrix, format="coo")
+            diag = np.arange(n)
+            csr = sp.csr_matrix((np.concatenate([upper.data, np.zeros(n, complex)]),
+                                 (np.concatenate([upper.row, diag]),
+                                  np.concatenate([upper.col, diag]))), shape=matrix.shape)
+        else:
+            csr = sp.csr_matrix(matrix)
+        csr.sum_duplicates()
+        csr.sort_indices()
+        a = np.ascontiguousarray(csr.data, dtype=np.complex128)
+        ia = np.ascontiguousarray(csr.indptr, dtype=np.int32)
+        ja = np.ascontiguousarray(csr.indices, dtype=np.int32)
+        pattern = (mtype, ia, ja)
+        same = (self.pattern is not None and self.mtype == mtype and self.n == csr.shape[0]
+                and np.array_equal(self.pattern[1], ia) and np.array_equal(self.pattern[2], ja))
+        if not same:
+            self._finalizer()  # release a previous analysis
+            self.pt[:] = 0
+            self.mtype, self.n = mtype, csr.shape[0]
+            self._set_parameters(symmetric)
+            self._finalizer = weakref.finalize(self, _release, self.lib, self.pt, self.iparm)
+            self._call(11, a, ia, ja)
+            self.pattern = pattern
+        else:
+            ia, ja = self.pattern[1], self.pattern[2]
+        self._call(22, a, ia, ja)
+        self.current = (a, ia, ja)
+        log.debug("PARDISO %s: %d unknowns, %d entries in the factors, %d perturbed pivots",
+                  "complex symmetric" if symmetric else "complex unsymmetric", self.n,
+                  self.iparm[17], self.iparm[13])
+        return self._solver(matrix, self.current)
+
+    def _set_parameters(self, symmetric):
+        p = self.iparm
+        p[:] = 0
+        p[0] = 1    # parameters given here
+        p[1] = 3    # fill-reducing ordering: nested dissection, parallel (OpenMP)
+        p[7] = 2    # at most two steps of iterative refinement
+        p[9] = 8 if symmetric else 13  # pivot perturbation 1e-8 / 1e-13
+        p[10] = 1   # scaling ...
+        p[12] = 1   # ... and weighted matching: robust on the badly scaled coupling rows
+        p[17] = -1  # report the factors' size
+        p[20] = 1   # Bunch-Kaufman pivoting (symmetric indefinite)
+        p[26] = 0   # no matrix check
+        p[33] = os.cpu_count() or 1  # same digits whatever the threads (sweeps, workers)
+        p[34] = 1   # zero-based indices
+
+    def _solver(self, matrix, current):
+        a, ia, ja = current
+
+        def solve(rhs):
+            if self.current is not current:
+                raise SolveError("this PARDISO factorisation was replaced by a later one")
+            b = np.asarray(rhs, dtype=np.complex128)
+            shape = b.shape
+            b = np.asfortranarray(b.reshape(self.n, -1))
+            x = np.zeros_like(b, order="F")
+            self._call(33, a, ia, ja, nrhs=b.shape[1], b=b, x=x)
+            if not np.all(np.isfinite(x)):
+                raise _singular("PARDISO: the solution is not finite")
+            r = matrix @ x - b
+            scale = np.abs(b).max()
+            if scale > 0 and np.abs(r).max() > 1e-6 * scale:
+                raise _singular(f"PARDISO: relative residual {np.abs(r).max() / scale:.1e}")
+            return x.reshape(shape)
+
+        return solve
+
+
+def _release(lib, pt, iparm):
+    if not pt.any():
+        return
+    n = ctypes.c_int32(0)
+    err = ctypes.c_int32(0)
+    one = ctypes.c_int32(1)
+    dummy = np.zeros(2, dtype=np.complex128)
+    idx = np.zeros(2, dtype=np.int32)
+    lib.pardiso(pt.ctypes.data_as(ctypes.c_void_p), ctypes.byref(one), ctypes.byref(one),
+                ctypes.byref(ctypes.c_int32(13)), ctypes.byref(ctypes.c_int32(-1)),
+                ctypes.byref(n), dummy.ctypes.data_as(ctypes.c_void_p),
+                idx.ctypes.data_as(ctypes.c_void_p), idx.ctypes.data_as(ctypes.c_void_p),
+                ctypes.c_void_p(None), ctypes.byref(one), iparm.ctypes.data_as(ctypes.c_void_p),
+                ctypes.byref(ctypes.c_int32(0)), dummy.ctypes.data_as(ctypes.c_void_p),
+                dummy.ctypes.data_as(ctypes.c_void_p), ctypes.byref(err))
+    pt[:] = 0
+
+
+@register_backend("pardiso", available=pardiso_available, preferred=True)
+def pardiso(matrix):
+    """oneMKL PARDISO (complex symmetric when the matrix is, else unsymmetric)."""
+    return _Pardiso().factorize(matrix)
+
+
+pardiso.session = lambda: _Pardiso().factorize
+
+
+def session(factorize):
+    """A factory that keeps what ``factorize``'s backend can between calls (see above)."""
+    maker = getattr(factorize, "session", None)
+    return maker() if maker is not None else factorize
 
 
 def choose(name: str = "auto") -> tuple[str, object]:
@@ -63,3 +291,4 @@ def choose(name: str = "auto") -> tuple[str, object]:
     if not BACKENDS[name].available():
         raise SolveError(f"linear solver {name!r} is not installed")
     return name, BACKENDS[name]
+from whorl.solver import iterative  # noqa: E402,F401  (registers "iterative")

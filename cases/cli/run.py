@@ -3,22 +3,32 @@
 from __future__ import annotations
 
 from whorl.cases.cli.common import add_case_args
+from whorl.cases.errors import CaseError
 from whorl.cases.loader import load_case
 from whorl.cases.output import output_root
 from whorl.cases.parameters import parse_set_args
 from whorl.cases.progress import StageReporter
 from whorl.cases.run import CAUTION, run_case
 from whorl.postprocess.summary import summary_text
+from whorl.solver import linalg
 
 HELP = "mesh, solve and write results (results.json, tables, log) for a case file"
 
 
 def add_args(parser) -> None:
     add_case_args(parser)
+    parser.add_argument("--solver", metavar="NAME",
+                        help="linear solver backend (overrides [model] solver): "
+                             f"auto, {', '.join(linalg.BACKENDS)}")
 
 
 def handle(args) -> int:
     case = load_case(args.case, parse_set_args(args.overrides))
+    if args.solver:
+        if args.solver not in ("auto", *linalg.BACKENDS):
+            raise CaseError("--solver", f"unknown linear solver {args.solver!r}; known: "
+                                        f"auto, {', '.join(linalg.BACKENDS)}")
+        case.solver = args.solver
     root = output_root(case, args.out)
     outcome = run_case(case, root, StageReporter(quiet=args.quiet))
     print(summary_text(outcome.results))

@@ -1,0 +1,148 @@
+"""Linear solver backends: each gives SuperLU's solution; auto falls back; iterative stalls loudly.
+
+Systems are small (a few thousand unknowns) on structured meshes: a planar pair of
+conductors (massive, voltage-driven: unsymmetric coupling rows; and a stranded coil
+with a free plate) and an axisymmetric stranded coil around a closed ring (complex
+symmetric).
+"""
+
+import numpy as np
+import pytest
+from meshing import tensor_mesh
+
+from whorl.solver import (
+    FluxParallel,
+    Massive,
+    Material,
+    Problem,
+    SolveError,
+    Stranded,
+    linalg,
+    solve_system,
+)
+from whorl.solver.iterative import iterative
+from whorl.solver.reduction import reduce
+from whorl.solver.system import assemble
+
+COPPER = Material("copper", 58e6)
+STEEL = Material("steel", 5e6, 20.0)
+AIR = Material("air")
+
+
+def _box(x0, x1, y0, y1):
+    return lambda x, y: (x > x0) & (x < x1) & (y > y0) & (y < y1)
+
+
+def planar_massive():
+    xs = np.linspace(-0.05, 0.05, 26)
+    mesh = tensor_mesh(xs, xs, {"go": _box(-0.02, -0.01, -0.01, 0.01),
+                                "back": _box(0.01, 0.02, -0.01, 0.01)})
+    return Problem(mesh, {"go": COPPER, "back": COPPER, "domain": AIR},
+                   (Massive("bar", ("go",), voltage=1e-3, return_regions=("back",),
+                            resistance=1e-4),),
+                   {s: FluxParallel() for s in ("left", "right", "top", "bottom")}, order=2)
+
+
+def planar_stranded_plate():
+    xs = np.linspace(-0.05, 0.05, 26)
+    mesh = tensor_mesh(xs, xs, {"coil": _box(-0.02, 0.02, -0.03, -0.01),
+                                "plate": _box(-0.03, 0.03, 0.0, 0.01)})
+    return Problem(mesh, {"coil": COPPER, "plate": STEEL, "domain": AIR},
+                   (Stranded("coil", ("coil",), turns=10, current=100.0),), order=2)
+
+
+def axisymmetric_ring():
+    rs, zs = np.linspace(0.0, 0.06, 25), np.linspace(-0.04, 0.04, 33)
+    mesh = tensor_mesh(rs, zs, {"ring": _box(0.0, 0.02, -0.01, 0.01),
+                                "coil": _box(0.03, 0.035, -0.02, 0.02)}, axisymmetric=True)
+    return Problem(mesh, {"ring": STEEL, "coil": COPPER, "domain": AIR},
+                   (Stranded("coil", ("coil",), turns=20, current=50.0),), order=2)
+
+
+PROBLEMS = {"planar-massive": planar_massive, "planar-plate": planar_stranded_plate,
+            "axisymmetric": axisymmetric_ring}
+DIRECT = [n for n in linalg.BACKENDS if n != "iterative"]
+
+
+def _system(name, frequency=5e3):
+    system = assemble(PROBLEMS[name]())
+    red = reduce(system)
+    omega = 2 * np.pi * frequency
+    return red.matrix(1.0, 1j * omega), red.rhs(system.rhs(omega), 1.0, 1j * omega)
+
+
+@pytest.fixture(scope="module")
+def systems():
+    return {name: _system(name) for name in PROBLEMS}
+
+
+@pytest.mark.parametrize("problem", list(PROBLEMS))
+@pytest.mark.parametrize("backend", DIRECT)
+def test_backend_matches_superlu(systems, backend, problem):
+    if not linalg.BACKENDS[backend].available():
+        pytest.skip(f"{backend} is not installed (pip install 'whorl[fast]')")
+    a, b = systems[problem]
+    reference = linalg.superlu(a)(b)
+    x = linalg.BACKENDS[backend](a)(b)
+    assert np.abs(x - reference).max() <= 1e-10 * np.abs(reference).max()
+
+
+def test_symmetry_check(systems):
+    assert linalg.is_symmetric(systems["axisymmetric"][0])
+    assert not linalg.is_symmetric(systems["planar-massive"][0])
+
+
+def test_frequency_list_reuses_the_analysis():
+    """A session refactorises at a new frequency and still gives SuperLU's answers."""
+    if not linalg.pardiso_available():
+        pytest.skip("pardiso is not installed")
+    system = assemble(planar_stranded_plate())
+    fast, _ = solve_system(system, [1e3, 3e3], backend="pardiso")
+    slow, info = solve_system(system, [1e3, 3e3], backend="scipy-superlu")
+    assert info["backend"] == "scipy-superlu"
+    for f, s in zip(fast, slow, strict=True):
+        assert np.abs(f.x - s.x).max() <= 1e-10 * np.abs(s.x).max()
+
+
+def test_iterative_converges(systems):
+    a, b = systems["planar-massive"]
+    reference = linalg.superlu(a)(b)
+    solve = iterative(a, rtol=1e-12)
+    x = solve(b)
+    assert solve.report["iterations"] > 0
+    assert solve.report["relative_residual"] <= 1e-11
+    assert np.abs(x - reference).max() <= 1e-7 * np.abs(reference).max()
+
+
+def test_iterative_raises_when_it_stalls(systems):
+    a, b = systems["axisymmetric"]
+    with pytest.raises(SolveError, match="stalled"):
+        iterative(a, maxiter=2, restart=2)(b)
+
+
+def test_auto_falls_back_when_the_extra_is_missing(monkeypatch):
+    for name in linalg.PREFERENCE:
+        if name != "scipy-superlu":
+            monkeypatch.setattr(linalg.BACKENDS[name], "available", lambda: False)
+    name, factorize = linalg.choose("auto")
+    assert name == "scipy-superlu"
+    assert "iterative" not in linalg.PREFERENCE
+    _, info = solve_system(assemble(axisymmetric_ring()), [1e3])
+    assert info["backend"] == "scipy-superlu"
+    with pytest.raises(SolveError, match="not installed"):
+        linalg.choose("pardiso")
+
+
+def test_unknown_backend_lists_the_known_ones():
+    with pytest.raises(SolveError, match="scipy-superlu"):
+        linalg.choose("nonesuch")
+
+
+def test_singular_system_is_a_solve_error():
+    import scipy.sparse as sp
+
+    a = sp.csc_matrix(np.array([[1.0, 1.0], [1.0, 1.0]], dtype=complex))
+    for name in DIRECT:
+        if linalg.BACKENDS[name].available():
+            with pytest.raises(SolveError, match="singular"):
+                linalg.BACKENDS[name](a)(np.array([1.0, 0.0], dtype=complex))
