@@ -138,6 +138,11 @@ def solution_record(solution, points=None, loops=None) -> dict:
         },
         "derived": derived_numbers(solution, regions, sources),
     }
+    for s in solution.problem.sources:  # a source's force: the sum over its conductors
+        if s.name in record["sources"]:
+            parts = [regions[r].force_n for r in (*s.regions, *s.return_regions)]
+            record["sources"][s.name]["force_n"] = [float(sum(f[0] for f in parts)),
+                                                    float(sum(f[1] for f in parts))]
     for name in solution.problem.mesh.regions:
         force = shell_force(solution, name, fields)
         record["regions"][name]["force_maxwell_n"] = list(force) if force else None

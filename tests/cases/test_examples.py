@@ -62,6 +62,8 @@ def test_busbar_cover_plate(tmp_path, capsys):
     cover = sol["regions"]["cover"]
     assert cover["current_rms_a"] < 1e-6 * 2500.0
     assert cover["loss_w"] > 0
+    # A source's force is the sum over its conductors.
+    assert sol["sources"]["phase-b"]["force_n"] == sol["regions"]["bar.2"]["force_n"]
     # The three terminal powers add up to all losses (Poynting), even with one negative.
     powers = [s["power_w"] for s in sol["sources"].values()]
     assert sum(powers) == pytest.approx(sol["totals"]["loss_w"], rel=1e-6)
