@@ -18,6 +18,7 @@ from whorl.cases import model
 from whorl.cases.output import staged_folder
 from whorl.cases.run_transient import series_tables, solve_transient
 from whorl.meshes.build import build_mesh
+from whorl.postprocess.balance import TOLERANCE as BALANCE_TOLERANCE
 from whorl.postprocess.plots import (
     PLOTS,
     frequency_text,
@@ -78,7 +79,7 @@ def model_warnings(case, mesh, records) -> list[str]:
                            "exterior mesh; add the return conductor")
     for rec in records:
         balance = rec["totals"]["power_balance"]
-        if balance["applies"] and balance["relative_mismatch"] > 1e-6:
+        if balance["applies"] and balance["relative_mismatch"] > BALANCE_TOLERANCE:
             out.append(f"at {rec['frequency_hz']:g} Hz the terminal power and the field power "
                        f"differ by {balance['relative_mismatch']:.2e} (relative): do not trust "
                        "the impedance")
