@@ -101,3 +101,33 @@ def test_round_wire_internal_impedance(ratio):
     wire = sol["regions"]["wire"]
     assert wire["loss_w"] == pytest.approx(z.real, rel=0.01)  # P = R |I|^2 with 1 A
     assert 2 * wire["magnetic_energy_j"] == pytest.approx(z.imag / omega, rel=0.01)
+
+
+@pytest.mark.parametrize("ratio, mu", [(0.5, 1), (3.0, 1), (10.0, 1), (10.0, 50)])
+def test_cylinder_in_coil(ratio, mu):
+    """Davies and Simpson: power per unit length within 1 %, a/delta from 0.5 to 10."""
+    from analytic import cylinder_power_per_length
+
+    sigma, radius, height = 5.8e6, 0.02, 0.01
+    frequency = ratio**2 / (radius**2 * np.pi * MU0 * mu * sigma)
+    _, results, _ = run("cylinder-in-coil", freq=f"{frequency} Hz", mu=mu)
+    h0 = 10 * 5.0 / height
+    expected = cylinder_power_per_length(h0, radius, sigma, mu, frequency) * height
+    assert results["solutions"][0]["regions"]["billet"]["loss_w"] == pytest.approx(expected,
+                                                                                  rel=0.01)
+
+
+@pytest.mark.parametrize("ratio, mu", [(0.3, 1), (2.0, 1), (20.0, 1), (5.0, 100)])
+def test_slab_in_field(ratio, mu):
+    """Stoll's closed form for the slab, d/delta from 0.3 to 20, within 1 %."""
+    from analytic import slab_loss_per_area, slab_propagation
+
+    sigma, d, gap, height, b0 = 5.8e7, 0.02, 0.02, 0.002, 1e-3
+    frequency = ratio**2 / (d**2 * np.pi * MU0 * mu * sigma)
+    _, results, _ = run("slab-in-field", freq=f"{frequency} Hz", mu=mu)
+    k = slab_propagation(sigma, mu, frequency)
+    half = d / 2 + gap
+    h_s = 2 * b0 * half / (MU0 * (2 * half - d) + MU0 * mu * (2 / k) * np.tanh(k * d / 2))
+    expected = slab_loss_per_area(h_s, d, sigma, mu, frequency) * height
+    assert results["solutions"][0]["regions"]["slab"]["loss_w"] == pytest.approx(expected,
+                                                                                rel=0.01)
