@@ -44,6 +44,3 @@ class Problem:
 
     def condition(self, side: str):
         return self.boundary.get(side, FluxParallel())
-
-    def material(self, region: str) -> Material:
-        return self.materials[region]

@@ -76,11 +76,9 @@ class System:
     def size(self) -> int:
         return self.S0.shape[0]
 
-    def matrix(self, omega: float) -> sp.csr_matrix:
-        return (self.S0 + (1j * omega) * self.S1).tocsr()
-
     def rhs(self, omega: float = 0.0) -> np.ndarray:
-        """Right-hand side of a harmonic solution (the sources' phasors)."""
+        """Right-hand side of a harmonic solution: the sources' phasors (the same at every
+        omega; the argument keeps the call readable beside the matrix's)."""
         return self.rhs_for({s.name: (s.voltage if current_is_unknown(s) else s.current)
                              for s in self.problem.sources if isinstance(s, Massive | Stranded)})
 
@@ -108,11 +106,10 @@ class System:
         return None
 
     def region_basis(self, region: str):
+        """The basis restricted to one region's elements (global dof numbering), cached."""
         if region not in self.region_bases:
-            elems = self.problem.mesh.elements(region)
-            self.region_bases[region] = self.basis.with_elements(elems) if hasattr(
-                self.basis, "with_elements") else Basis(
-                self.basis.mesh, self.basis.elem, elements=elems, intorder=self.basis.intorder)
+            self.region_bases[region] = self.basis.with_elements(
+                self.problem.mesh.elements(region))
         return self.region_bases[region]
 
 
