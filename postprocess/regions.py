@@ -60,7 +60,7 @@ def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
     peak = q.loss.max(axis=1)
     out = {}
     for i, name in enumerate(names):
-        elems = np.flatnonzero(index == i)
+        elems = tagged.elements(name)  # the mesh's own element lists, not a search
         top, at = 0.0, None
         if elems.size and peak[elems].max() > 0:
             e = elems[np.argmax(peak[elems])]
