@@ -132,11 +132,14 @@ def iterative(matrix, rtol: float = RTOL, maxiter: int = MAXITER, restart: int =
                                callback=lambda r: steps.append(r), callback_type="pr_norm")
         residual = float(np.linalg.norm(b - a @ x) / norm)
         solve.report = {"method": f"GMRES({restart}) with {kind}", "iterations": len(steps),
-                        "relative_residual": residual, "setup_s": setup,
+                        "relative_residual": residual, "gmres_status": int(status),
+                        "setup_s": setup,
                         "solve_s": time.perf_counter() - t1}
         log.info("iterative: %s, %d steps, relative residual %.2e (setup %.2f s, solve %.2f s)",
                  solve.report["method"], len(steps), residual, setup, solve.report["solve_s"])
-        if status != 0 or not np.isfinite(residual) or residual > 10 * rtol:
+        # Judge by the true residual: GMRES's own status follows the preconditioned one,
+        # which near round-off can miss its target while the solution is already good.
+        if not np.isfinite(residual) or residual > 10 * rtol:
             raise SolveError(
                 f"the iterative solver stalled: relative residual {residual:.2e} after "
                 f"{len(steps)} GMRES steps (asked for {rtol:.0e} within {maxiter}); use a "
