@@ -194,7 +194,7 @@ def _build(text: str, path, overrides: dict) -> Case:
         points=read_points(ctx, doc, domain.spec),
         output=read_output(_section(ctx, doc, "output")),
         sweep=read_sweep(_section(ctx, doc, "sweep"), list(ctx.params)),
-        path=Path(path) if path else None, document=document,
+        path=Path(path) if path else None, document=document, text=text,
     )
 
 

@@ -2,16 +2,15 @@
 
 from __future__ import annotations
 
-import re
 from dataclasses import dataclass
 
 from whorl.cases.errors import CaseError
+from whorl.cases.names import MAX_NAME, SLUG, valid_name
 from whorl.cases.reader import Table
 from whorl.cases.units import length_unit_metres
 from whorl.meshes.geometry import MeshOptions
 from whorl.solver import linalg
 
-SLUG = re.compile(r"^[A-Za-z0-9_-]+$")
 GEOMETRIES = ("planar", "axisymmetric")
 
 
@@ -44,9 +43,10 @@ def read_case(table: Table, default_name: str) -> CaseInfo:
     """``[case]``: ``name`` (a slug; default the file's stem), ``title``, ``notes``."""
     table.allow({"name", "title", "notes"})
     name = table.string("name", default_name)
-    if not SLUG.match(name):
+    if not valid_name(name, SLUG):
         raise table.error("name", f"{name!r} is not a valid case name: use letters, digits, "
-                                  "- and _ (it names the output folder)")
+                                  f"- and _, at most {MAX_NAME} characters (it names the "
+                                  "output folder)")
     return CaseInfo(name, table.string("title", name), table.string("notes", ""))
 
 

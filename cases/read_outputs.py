@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+from whorl.cases.names import checked_name
 from whorl.cases.read_domain import contains
 from whorl.cases.reader import Context, Table, array_of_tables
 from whorl.cases.spec import LineSpec, LoopSpec, OutputSpec, PointSpec
@@ -13,9 +14,7 @@ def _named(ctx: Context, document: dict, kind: str):
     """Tables of ``[[kind]]`` with a unique ``name`` each."""
     seen = set()
     for table in array_of_tables(ctx, document, kind):
-        name = table.string("name")
-        if not name.strip():
-            raise table.error("name", "the name is empty")
+        name = checked_name(table, "name", kind)
         if name in seen:
             raise table.error("name", f"{kind} name {name!r} is used twice")
         seen.add(name)
@@ -92,4 +91,7 @@ def read_output(table: Table | None) -> OutputSpec:
     text = table.string("folder", "results")
     if not text.strip():
         raise table.error("folder", "the folder name is empty")
+    if "\0" in text:
+        raise table.error("folder", "the folder name holds a NUL character, which no file "
+                                    "system accepts")
     return OutputSpec(Path(text), table.boolean("fields", False), table.boolean("plots", False))

@@ -2,15 +2,14 @@
 
 from __future__ import annotations
 
-import re
 from dataclasses import dataclass
 
 from whorl.cases.errors import CaseError
+from whorl.cases.names import MAX_NAME, valid_name
 from whorl.cases.reader import Context, Table, array_of_tables
 from whorl.meshes.geometry import RegionSpec
 from whorl.meshes.shapes import SHAPES, Circle, Polygon, Rectangle, Ring
 
-NAME = re.compile(r"^[A-Za-z0-9_][A-Za-z0-9_.-]*$")
 RESERVED = ("domain",)
 COMMON = {"name", "material", "shape", "mesh_size", "repeat"}
 SHAPE_KEYS = {
@@ -58,9 +57,10 @@ def _read_one(ctx: Context, table: Table) -> list[RegionEntry]:
                                    f"{', '.join(sorted(extra))})")
     table.allow(COMMON | extra, required=("name", "material") + tuple(sorted(extra)))
     name = table.string("name")
-    if not NAME.match(name) or name in RESERVED:
+    if not valid_name(name) or name in RESERVED:
         raise table.error("name", f"{name!r} is not a valid region name: use letters, digits, "
-                                  "-, _ and . (and not 'domain')")
+                                  f"-, _ and . (and not 'domain'), at most {MAX_NAME} "
+                                  "characters")
     material = table.string("material")
     mesh_size = table.positive("mesh_size", "length", None, geometry=True)
     shape = _SHAPE_READERS[shape_name](table)

@@ -12,16 +12,15 @@ from __future__ import annotations
 
 import cmath
 import math
-import re
 
 from whorl.cases.errors import CaseError
+from whorl.cases.names import valid_name
 from whorl.cases.read_regions import expand
 from whorl.cases.reader import Context, Table, array_of_tables
 from whorl.solver.sources import AppliedField, Massive, Shorted, Stranded
 from whorl.solver.waveforms import from_dict
 
 KINDS = ("stranded", "massive", "applied-field")
-NAME = re.compile(r"^[A-Za-z0-9_][A-Za-z0-9_.-]*$")
 _DRIVEN = {"name", "kind", "regions", "return_regions"}
 _KEYS = {
     ("stranded", False): _DRIVEN | {"turns", "current", "voltage", "phase", "resistance"},
@@ -62,7 +61,7 @@ def read_sources(ctx: Context, document: dict, regions: list[str], conductivity,
         table = Table(ctx, raw.data, path, raw.block)
         table.allow(set().union(*_KEYS.values()), required=("name", "kind"))
         name = table.string("name")
-        if not NAME.match(name):
+        if not valid_name(name):
             raise table.error("name", f"{name!r} is not a valid source name")
         if any(s.name == name for s in sources):
             raise table.error("name", f"source name {name!r} is used twice")

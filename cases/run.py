@@ -204,7 +204,9 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
         tables = transient_tables(results["series"])
     files.append(write_report(results, images, folder / "report.html", tables))
     if case.path is not None:
-        text = Path(case.path).read_text(encoding="utf-8")
+        # the text that was read and solved, not the file as it is now
+        text = case.text if case.text is not None else Path(case.path).read_text(
+            encoding="utf-8")
         files.append(folder / "case.toml")
         files[-1].write_text(text, encoding="utf-8")
     resolved = {"name": case.name, "parameters": case.parameters,
@@ -234,10 +236,15 @@ def transient_tables(series: dict) -> dict:
                                  bal["relative_mismatch"]]])}
 
 
-def run_case(case, root: Path, progress=None) -> RunOutcome:
-    """Solve ``case`` and write ``root/CASE_NAME/``; returns what was written."""
+def run_case(case, root: Path, progress=None, key: str = "output.folder") -> RunOutcome:
+    """Solve ``case`` and write ``root/CASE_NAME/``; returns what was written.
+
+    The folder is checked before anything is solved: an existing folder is
+    replaced only when whorl wrote it and it holds no sweep (else
+    :class:`~whorl.cases.errors.CaseError` under ``key``; see :mod:`.output`).
+    """
     final = Path(root) / case.name
-    with staged_folder(final) as tmp:
+    with staged_folder(final, key, "run") as tmp:
         handler = logging.FileHandler(tmp / "run.log", encoding="utf-8")
         handler.setFormatter(logging.Formatter("%(asctime)s %(levelname)s %(name)s: %(message)s"))
         whorl_log = logging.getLogger("whorl")

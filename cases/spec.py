@@ -101,6 +101,7 @@ class Case:
     path: Path | None = None
     document: dict = field(default_factory=dict)
     solver: str = "auto"  # linear solver backend by name (whorl.solver.linalg)
+    text: str | None = None  # the case file's text as read (what was solved)
 
     @property
     def axisymmetric(self) -> bool:

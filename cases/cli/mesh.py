@@ -5,7 +5,7 @@ from __future__ import annotations
 from whorl.cases import model
 from whorl.cases.cli.common import add_case_args
 from whorl.cases.loader import load_case
-from whorl.cases.output import output_root, staged_folder
+from whorl.cases.output import output_key, output_root, staged_folder
 from whorl.cases.parameters import parse_set_args
 from whorl.cases.progress import StageReporter
 from whorl.meshes.build import build_mesh
@@ -22,9 +22,10 @@ def add_args(parser) -> None:
 def handle(args) -> int:
     case = load_case(args.case, parse_set_args(args.overrides))
     root = output_root(case, args.out)
-    tagged = build_mesh(model.sized_geometry(case), progress=StageReporter(quiet=args.quiet))
     final = root / case.name
-    with staged_folder(final) as tmp:
+    with staged_folder(final, output_key(args.out), "mesh") as tmp:
+        tagged = build_mesh(model.sized_geometry(case),
+                            progress=StageReporter(quiet=args.quiet))
         write_msh(tagged, tmp / "mesh.msh")
         plot_mesh(tagged, tmp / "mesh.png", title=case.title or case.name)
     info = tagged.info

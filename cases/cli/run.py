@@ -5,7 +5,7 @@ from __future__ import annotations
 from whorl.cases.cli.common import add_case_args
 from whorl.cases.errors import CaseError
 from whorl.cases.loader import load_case
-from whorl.cases.output import output_root
+from whorl.cases.output import output_key, output_root
 from whorl.cases.parameters import parse_set_args
 from whorl.cases.progress import StageReporter
 from whorl.cases.run import CAUTION, run_case
@@ -30,7 +30,8 @@ def handle(args) -> int:
                                         f"auto, {', '.join(linalg.BACKENDS)}")
         case.solver = args.solver
     root = output_root(case, args.out)
-    outcome = run_case(case, root, StageReporter(quiet=args.quiet))
+    outcome = run_case(case, root, StageReporter(quiet=args.quiet),
+                       output_key(args.out))
     print(summary_text(outcome.results))
     print()
     print(f"results in {outcome.folder}")

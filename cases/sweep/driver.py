@@ -28,7 +28,13 @@ from pathlib import Path
 
 from whorl.cases.errors import CaseError
 from whorl.cases.loader import load_case
-from whorl.cases.output import output_root
+from whorl.cases.output import (
+    MARKER,
+    is_whorl_folder,
+    output_key,
+    output_root,
+    write_marker,
+)
 from whorl.cases.sweep.engine import run_tasks
 from whorl.cases.sweep.lock import SweepLock
 from whorl.cases.sweep.meshcache import MeshCache
@@ -122,10 +128,11 @@ def run_sweep(path, overrides=None, out=None, workers: int | None = None, schedu
     overrides = dict(overrides or {})
     case, specs = load_sweep(path, overrides, max_points)
     folder = sweep_folder(case, out)
-    folder.mkdir(parents=True, exist_ok=True)
+    make_sweep_folder(folder, output_key(out))
     with SweepLock(folder):
         if restart:
             _clear(folder)
+            write_marker(folder, "sweep")
         store = SweepStore(folder / STORE_NAME)
         try:
             _check_fingerprint(store, case, overrides)
@@ -161,7 +168,7 @@ def _run(store, case, specs, folder, overrides, workers, scheduler, point_timeou
     points_dir.mkdir(exist_ok=True)
     for stale in points_dir.glob(".*"):
         shutil.rmtree(stale, ignore_errors=True)
-    text = Path(case.path).read_text(encoding="utf-8")
+    text = case.text  # the text that was read and checked, not the file as it is now
     status = {p["point"]: p["status"] for p in store.points()}
     cases = {}
     for number, spec in zip(numbers, specs, strict=True):
@@ -189,8 +196,30 @@ def _run(store, case, specs, folder, overrides, workers, scheduler, point_timeou
                         report["meshed"], files, timing)
 
 
+def make_sweep_folder(folder: Path, key: str) -> None:
+    """Create ``OUTPUT/NAME/sweep`` (marked as whorl's) or check the existing one; a
+    place the system refuses is a :class:`CaseError` under ``key`` with its reason."""
+    try:
+        if folder.parent.exists() and not folder.parent.is_dir():
+            raise CaseError(key, f"{folder.parent} exists and is not a folder (output.folder / "
+                                 "case.name point at it): choose another [output] folder or "
+                                 "[case] name")
+        fresh = not folder.exists()
+        folder.mkdir(parents=True, exist_ok=True)
+        if fresh:
+            write_marker(folder, "sweep")
+    except (OSError, ValueError) as exc:
+        reason = exc.strerror if isinstance(exc, OSError) and exc.strerror else str(exc)
+        raise CaseError(key, f"cannot write the sweep folder {folder}: {reason}") from None
+
+
 def _clear(folder: Path) -> None:
-    """Discard a sweep folder's results (``--restart``), keeping its lock file."""
+    """Discard a sweep folder's results (``--restart``), keeping its lock file.
+
+    Only a folder whorl wrote (its marker or its store) is cleared."""
+    if not (is_whorl_folder(folder) or (folder / STORE_NAME).exists()):
+        raise CaseError("--restart", f"{folder} was not written by whorl (no {MARKER} marker "
+                                     "and no store): whorl will not clear it")
     for entry in folder.iterdir():
         if entry.name == SweepLock.NAME:
             continue
