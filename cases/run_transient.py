@@ -59,10 +59,12 @@ def series_tables(series: dict, folder: Path) -> list[Path]:
                            ["time_s", "source", "current_a", "voltage_v", "capacitor_voltage_v"],
                            rows))
     if series["loops"]:
-        rows = [[t[k], name, lp["flux_wb"][k], lp["emf_v"][k], lp["emf_from_e_v"][k]]
+        rows = [[t[k], name, lp["flux_wb"][k], lp["flux_linkage_wb"][k], lp["emf_v"][k],
+                 lp["emf_from_e_v"][k]]
                 for name, lp in series["loops"].items() for k in range(len(t))]
         files.append(write_csv(folder / "series_loops.csv",
-                               ["time_s", "loop", "flux_wb", "emf_v", "emf_from_e_v"], rows))
+                               ["time_s", "loop", "flux_wb", "flux_linkage_wb", "emf_v",
+                                "emf_from_e_v"], rows))
     tot = series["totals"]
     files.append(write_csv(folder / "series_totals.csv",
                            ["time_s", "loss_w", "magnetic_energy_j", "source_power_w"],

@@ -3,11 +3,18 @@ r"""Loops: the flux through a closed contour and the EMF around it (Faraday's la
 Four numbers per loop, which must agree where the contour lies in air
 (Faraday's law in integral form, EMF = -d(flux)/dt; any electromagnetics text):
 
-- ``flux_wb``: from A, the circulation of A around the contour;
-- ``flux_from_b_wb``: B integrated over a surface the contour bounds;
-- ``emf_v``: -turns d(flux)/dt, that is -j omega turns flux for phasors;
+- ``flux_wb``: the flux through one turn, from A (the circulation of A around
+  the contour);
+- ``flux_from_b_wb``: the same flux per turn, B integrated over a surface the
+  contour bounds;
+- ``flux_linkage_wb``: turns x ``flux_wb`` (Wb-turns);
+- ``emf_v``: -d(flux linkage)/dt, that is -j omega x flux linkage for phasors;
 - ``emf_from_e_v``: the circulation of E, turns times, which in a massive
   conductor includes its electrostatic part (the applied voltage term).
+
+Sign convention: the EMF is positive when it drives current along the loop's
+direction of traversal, and the flux is positive along the normal that
+direction gives by the right-hand rule; hence EMF = -d(flux linkage)/dt.
 
 Orientation (right-hand rule):
 
@@ -30,14 +37,26 @@ from whorl.postprocess.probes import probe
 SAMPLES = 2000  # Gauss points on the surface integral (composite Gauss-Legendre)
 
 
+EMF_SIGN = ("EMF = -d(flux linkage)/dt (phasors: -j omega x flux linkage), positive along "
+            "the loop's direction, which the flux's positive direction follows by the "
+            "right-hand rule")
+
+
 @dataclass
 class LoopResult:
+    """One loop's numbers: fluxes per turn (Wb), EMFs of all turns (V)."""
+
     name: str
     turns: float
     flux_wb: complex
     flux_from_b_wb: complex
     emf_v: complex
     emf_from_e_v: complex
+
+    @property
+    def flux_linkage_wb(self) -> complex:
+        """Turns x flux per turn (Wb-turns)."""
+        return self.turns * self.flux_wb
 
 
 def _gauss(a, b, n):
@@ -63,7 +82,7 @@ def axisymmetric_loop(solution, name, r, z, turns=1.0, surface=True) -> LoopResu
         flux_b = np.sum(disk.b[1] * 2 * np.pi * rr * w)
     emf_e = 2 * np.pi * r * at.e[0]
     emf = -2 * np.pi * r * at.a_rate[0]
-    return LoopResult(name, turns, turns * flux, turns * flux_b, turns * emf, turns * emf_e)
+    return LoopResult(name, turns, flux, flux_b, turns * emf, turns * emf_e)
 
 
 def planar_loop(solution, name, start, end, turns=1.0, surface=True) -> LoopResult:
@@ -84,4 +103,4 @@ def planar_loop(solution, name, start, end, turns=1.0, surface=True) -> LoopResu
         flux_b = depth * length * np.sum((strip.b[0] * normal[0] + strip.b[1] * normal[1]) * w)
     emf_e = depth * (ends.e[0] - ends.e[1])
     emf = -depth * (ends.a_rate[0] - ends.a_rate[1])
-    return LoopResult(name, turns, turns * flux, turns * flux_b, turns * emf, turns * emf_e)
+    return LoopResult(name, turns, flux, flux_b, turns * emf, turns * emf_e)

@@ -79,7 +79,8 @@ def point_record(p, k: int) -> dict:
 
 def loop_record(lp) -> dict:
     return {"turns": lp.turns, "flux_wb": pair(lp.flux_wb),
-            "flux_from_b_wb": pair(lp.flux_from_b_wb), "emf_v": pair(lp.emf_v),
+            "flux_from_b_wb": pair(lp.flux_from_b_wb),
+            "flux_linkage_wb": pair(lp.flux_linkage_wb), "emf_v": pair(lp.emf_v),
             "emf_from_e_v": pair(lp.emf_from_e_v)}
 
 

@@ -15,6 +15,8 @@ import html
 import math
 from pathlib import Path
 
+from whorl.postprocess.loops import EMF_SIGN
+
 #: Cautions shown prominently near the top of every report.
 CAUTIONS = (
     "The results are estimates from an idealised model (linear materials, a 2D geometry, "
@@ -156,12 +158,14 @@ def _loops(sol) -> str:
     rows = []
     for name, lp in sol.get("loops", {}).items():
         flux, emf = _complex(lp.get("flux_wb")), _complex(lp.get("emf_v"))
+        linkage = _complex(lp.get("flux_linkage_wb", lp.get("flux_wb")))
         rows.append([_name(name), _num(abs(flux), "Wb"), _phase(flux),
                      _num(abs(_complex(lp.get("flux_from_b_wb"))), "Wb"),
-                     _num(abs(emf), "V"), _phase(emf),
+                     _num(abs(linkage), "Wb"), _num(abs(emf), "V"), _phase(emf),
                      _num(abs(_complex(lp.get("emf_from_e_v"))), "V")])
-    return _table("Loops", ("loop", "flux (RMS)", "phase", "flux from B", "EMF (RMS)", "phase",
-                            "EMF from E"), rows)
+    return _table("Loops", ("loop", "flux per turn (RMS)", "phase", "flux per turn from B",
+                            "flux linkage (turns x flux)", "EMF (RMS)", "phase", "EMF from E"),
+                  rows) + f"<p>{_e(EMF_SIGN)}.</p>"
 
 
 def _points(sol) -> str:
@@ -284,6 +288,8 @@ def write_report(results: dict, images: dict | None, path, tables: dict | None =
     if "series" in results:
         body.append("<h2>Time series</h2><p>Every step is in results.json (block "
                     "<code>series</code>) and in the series_*.csv tables.</p>")
+        if results["series"].get("loops"):
+            body.append(f"<p>Loops: flux per turn and flux linkage; {_e(EMF_SIGN)}.</p>")
     if images:
         body.append("<h2>Pictures</h2>")
         body.extend(_image(caption, p) for caption, p in images.items())

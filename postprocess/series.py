@@ -60,9 +60,10 @@ class SeriesRecorder:
                 resistive += s.resistance * state.source_current(s).real ** 2
         for lp in self.loops:
             res = loop_result(state, lp, surface=False)
-            rec = self.loop_series.setdefault(lp["name"], {"flux_wb": [], "emf_v": [],
-                                                           "emf_from_e_v": []})
+            rec = self.loop_series.setdefault(lp["name"], {"flux_wb": [], "flux_linkage_wb": [],
+                                                           "emf_v": [], "emf_from_e_v": []})
             rec["flux_wb"].append(res.flux_wb.real)
+            rec["flux_linkage_wb"].append(res.flux_linkage_wb.real)
             rec["emf_v"].append(res.emf_v.real)
             rec["emf_from_e_v"].append(res.emf_from_e_v.real)
         self.loss.append(sum(t.loss_w for t in regions.values()) + resistive)

@@ -4,6 +4,8 @@ from __future__ import annotations
 
 import math
 
+from whorl.postprocess.loops import EMF_SIGN
+
 
 def _eng(value: float, unit: str) -> str:
     """Engineering notation: 1234.5, 'W' -> '1.23 kW'."""
@@ -39,6 +41,12 @@ def series_summary(series: dict) -> list[str]:
                 k = max(range(len(t)), key=lambda i: abs(p[i]))
                 out.append(f"  region {name}: peak mean radial pressure {_eng(p[k], 'Pa')} "
                            f"({'outwards' if p[k] > 0 else 'inwards'}) at {_eng(t[k], 's')}")
+    for name, rec in series.get("loops", {}).items():
+        k = max(range(len(t)), key=lambda i: abs(rec["emf_v"][i]))
+        out.append(f"  loop {name}: peak EMF {_eng(rec['emf_v'][k], 'V')} at {_eng(t[k], 's')}, "
+                   f"flux per turn at the end {_eng(rec['flux_wb'][-1], 'Wb')}")
+    if series.get("loops"):
+        out.append(f"  ({EMF_SIGN})")
     bal = series["energy_balance"]
     out.append(f"  energy: delivered {_eng(bal['delivered_j'], 'J')}, dissipated "
                f"{_eng(bal['dissipated_j'], 'J')}, stored at the end {_eng(bal['stored_j'], 'J')} "
@@ -90,6 +98,13 @@ def summary_text(results: dict) -> str:
                              "in series")
             if extra:
                 lines.append("    " + ", ".join(extra))
+        for name, lp in sol.get("loops", {}).items():
+            flux, emf = abs(complex(*lp["flux_wb"])), abs(complex(*lp["emf_v"]))
+            link = lp.get("turns", 1.0) * flux
+            lines.append(f"  loop {name}: flux per turn {_eng(flux, 'Wb')}, flux linkage "
+                         f"{_eng(link, 'Wb')} ({lp['turns']:g} turns), EMF {_eng(emf, 'V')} (RMS)")
+        if sol.get("loops"):
+            lines.append(f"  ({EMF_SIGN})")
         for name, p in sol["points"].items():
             b = [complex(*c) for c in p["flux_density_t"]]
             b_rms = (abs(b[0]) ** 2 + abs(b[1]) ** 2) ** 0.5

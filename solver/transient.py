@@ -5,9 +5,10 @@ Schemes (fixed step h):
 - implicit Euler:  (S0 + S1/h) x_{n+1} = b_{n+1} + S1 x_n / h                (order 1)
 - BDF2:            (S0 + 3 S1/(2h)) x_{n+1} = b_{n+1} + S1 (2 x_n - x_{n-1}/2) / h   (order 2)
 
-BDF2 starts with one implicit-Euler step; its one-step error is O(h^2) so the
-global order stays 2 (E. Hairer and G. Wanner, *Solving Ordinary Differential
-Equations II*, 1996, ch. V). Both are L-stable, which the algebraic rows of the
+BDF2 starts with one implicit-Euler step, and restarts the same way at every
+breakpoint of a source's waveform (a step lands on it; see :func:`march`); each
+such step's error is O(h^2), so the global order stays 2 (E. Hairer and
+G. Wanner, *Solving Ordinary Differential Equations II*, 1996, ch. V). Both are L-stable, which the algebraic rows of the
 system (air, branch and circuit equations) need. Each matrix is factorised
 once and reused for every step.
 
@@ -59,36 +60,83 @@ def initial_state(system) -> np.ndarray:
     return x
 
 
+def breakpoints(system, end_s: float) -> dict[float, bool]:
+    """Instants in [0, end] where a source's waveform kinks or jumps -> True for a jump
+    (see :mod:`whorl.solver.waveforms`)."""
+    out: dict[float, bool] = {}
+    for s in system.problem.sources:
+        listed = getattr(getattr(s, "waveform", None), "breakpoints", None)
+        for t, jump in listed() if listed else ():
+            if 0.0 <= t <= end_s:
+                out[float(t)] = out.get(float(t), False) or bool(jump)
+    return out
+
+
+def time_grid(end_s: float, step_s: float, marks) -> np.ndarray:
+    """t = 0, h, 2h, ... with every breakpoint in ``marks`` added; a grid instant within
+    1e-6 h of a breakpoint moves onto it (no sliver steps)."""
+    steps = int(round(end_s / step_s))
+    grid = np.arange(steps + 1) * step_s
+    extra = []
+    for tb in marks:
+        k = int(round(tb / step_s))
+        if k <= steps and abs(grid[k] - tb) <= 1e-6 * step_s:
+            grid[k] = tb
+        elif tb < grid[-1]:
+            extra.append(tb)
+    return np.unique(np.concatenate([grid, extra]))
+
+
 def march(system, end_s: float, step_s: float, scheme: str = "bdf2", backend: str = "auto",
           progress=None):
-    """Yield a :class:`Solution` (with ``x_rate`` and ``time_s``) at t = 0, h, 2h, ... end."""
+    """Yield a :class:`Solution` (with ``x_rate`` and ``time_s``) at t = 0, h, 2h, ... end,
+    and at every breakpoint of the sources' waveforms in between.
+
+    BDF2 needs two equal steps of size h within one smooth piece of every input: the
+    points t_{n-1}, t_n, t_{n+1} must not straddle a breakpoint (none at t_n, no jump
+    at t_{n-1} or t_{n+1}, where the state holds the value on the other side of the
+    jump). Elsewhere the step
+    is an implicit-Euler step, whose rate (x_{n+1} - x_n) / dt is then the reported one:
+    the scheme restarts at every breakpoint, and the rates never difference across one.
+    """
     if scheme not in SCHEMES:
         raise SolveError(f"unknown time scheme {scheme!r}; use one of {', '.join(SCHEMES)}")
     if step_s <= 0 or end_s <= 0:
         raise SolveError("the time step and the end time must be positive")
-    steps = int(round(end_s / step_s))
     h = step_s
+    marks = breakpoints(system, end_s)
+    times = time_grid(end_s, h, marks)
+    kind = [marks.get(float(t)) for t in times]  # None, False (kink) or True (jump)
+    steps = times.size - 1
     name, factorize = linalg.choose(backend)
     red = reduce(system)
     red.fixed_values = red.fixed_values.real.copy()  # instantaneous values are real
     x = initial_state(system)
     yield Solution(system, 0.0, x.astype(complex), np.zeros(system.size, dtype=complex), 0.0)
-    euler = factorize(red.matrix(1.0, 1.0 / h))
-    bdf2 = factorize(red.matrix(1.0, 1.5 / h)) if scheme == "bdf2" and steps > 1 else None
+    euler: dict = {}
+    bdf2 = None
     S1 = system.S1
     x_prev = None
     t0 = time.perf_counter()
     for n in range(1, steps + 1):
-        t = n * h
+        t, dt = float(times[n]), float(times[n] - times[n - 1])
         b = system.rhs_for(drive_at(system, t))
-        if bdf2 is None or x_prev is None:
-            hist = S1 @ x / h
-            x_new = red.expand(euler(red.rhs(b + hist, 1.0, 1.0 / h)))
-            rate = (x_new - x) / h
-        else:
+        use_bdf2 = (scheme == "bdf2" and x_prev is not None and kind[n - 1] is None
+                    and kind[n - 2] is not True and kind[n] is not True and abs(dt - h) <= 1e-9 * h
+                    and abs(times[n - 1] - times[n - 2] - h) <= 1e-9 * h)
+        if use_bdf2:
+            if bdf2 is None:
+                bdf2 = factorize(red.matrix(1.0, 1.5 / h))
             hist = S1 @ (2 * x - 0.5 * x_prev) / h
             x_new = red.expand(bdf2(red.rhs(b + hist, 1.0, 1.5 / h)))
             rate = (1.5 * x_new - 2 * x + 0.5 * x_prev) / h
+        else:
+            key = round(dt / h, 9)
+            if key not in euler:
+                euler[key] = factorize(red.matrix(1.0, 1.0 / dt))
+            hist = S1 @ x / dt
+            x_new = red.expand(euler[key](red.rhs(b + hist, 1.0, 1.0 / dt)))
+            rate = (x_new - x) / dt
         if not np.all(np.isfinite(x_new)):
             raise SolveError(f"the solution at t = {t:g} s is not finite")
         x_prev, x = x, x_new

@@ -43,7 +43,18 @@ def test_faraday_consistency_in_air(coil_solution, r, z):
     scale = abs(lp.emf_v)
     assert abs(lp.flux_from_b_wb - lp.flux_wb) < 0.005 * abs(lp.flux_wb)
     assert abs(lp.emf_from_e_v - lp.emf_v) < 0.005 * scale
-    assert lp.emf_v == pytest.approx(-1j * 2 * np.pi * 2000.0 * lp.flux_wb)
+    assert lp.emf_v == pytest.approx(-1j * 2 * np.pi * 2000.0 * lp.flux_linkage_wb)
+
+
+def test_flux_is_per_turn_and_linkage_is_turns_times_flux(coil_solution):
+    """The flux through one turn does not depend on the number of turns; the flux linkage
+    and the EMF scale with it (the contract in CASEFILE.md, "Loops")."""
+    one = axisymmetric_loop(coil_solution, "probe", 0.045, 0.01, turns=1)
+    many = axisymmetric_loop(coil_solution, "probe", 0.045, 0.01, turns=7)
+    assert many.flux_wb == one.flux_wb
+    assert many.flux_from_b_wb == one.flux_from_b_wb
+    assert many.flux_linkage_wb == pytest.approx(7 * one.flux_wb, rel=1e-14)
+    assert many.emf_v == pytest.approx(7 * one.emf_v, rel=1e-14)
 
 
 def test_loop_in_a_long_solenoid_reads_the_ampere_flux():

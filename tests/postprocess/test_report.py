@@ -80,8 +80,10 @@ def results():
     sol = planar_p2()
     sols = [sol, *solve_harmonic(sol.problem, [1600.0])[0]]
     records = [solution_record(s, {"above": (0.0, 0.03)}) for s in sols]
-    records[0]["loops"] = {"pickup & sense": {"flux_wb": [1e-6, -2e-7], "flux_from_b_wb":
-                                              [1e-6, -2e-7], "emf_v": [-7.5e-4, -2.5e-3],
+    records[0]["loops"] = {"pickup & sense": {"turns": 2.0, "flux_wb": [1e-6, -2e-7],
+                                              "flux_from_b_wb": [1e-6, -2e-7],
+                                              "flux_linkage_wb": [2e-6, -4e-7],
+                                              "emf_v": [-7.5e-4, -2.5e-3],
                                               "emf_from_e_v": [-7.5e-4, -2.5e-3]}}
     mesh = sol.problem.mesh.mesh
     return {
@@ -149,7 +151,10 @@ def test_sources_loops_points_and_totals(report):
     assert row[10][0].startswith("0.") or row[10][0].startswith("1.")
     loops = page.table("Loops")
     assert loops[1][0][0] == "pickup & sense"
-    assert float(loops[1][4][1]) == pytest.approx(abs(complex(-7.5e-4, -2.5e-3)), rel=1e-12)
+    assert float(loops[1][1][1]) == pytest.approx(abs(complex(1e-6, -2e-7)), rel=1e-12)
+    assert float(loops[1][4][1]) == pytest.approx(abs(complex(2e-6, -4e-7)), rel=1e-12)
+    assert float(loops[1][5][1]) == pytest.approx(abs(complex(-7.5e-4, -2.5e-3)), rel=1e-12)
+    assert "-d(flux linkage)/dt" in "".join(page.text)
     points = page.table("Points")
     assert points[1][0][0] == "above"
     b = [complex(*c) for c in sol["points"]["above"]["flux_density_t"]]
