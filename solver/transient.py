@@ -8,9 +8,9 @@ Schemes (fixed step h):
 BDF2 starts with one implicit-Euler step, and restarts the same way at every
 breakpoint of a source's waveform (a step lands on it; see :func:`march`); each
 such step's error is O(h^2), so the global order stays 2 (E. Hairer and
-G. Wanner, *Solving Ordinary Differential Equations II*, 1996, ch. V). Both are L-stable, which the algebraic rows of the
-system (air, branch and circuit equations) need. Each matrix is factorised
-once and reused for every step.
+G. Wanner, *Solving Ordinary Differential Equations II*, 1996, ch. V). Both are
+L-stable, which the algebraic rows of the system (air, branch and circuit
+equations) need. Each matrix is factorised once (per step size) and reused.
 
 Side conditions with a non-zero potential (and applied fields) switch on at
 t = 0+ like a step; sources follow their waveforms; capacitors start at their
