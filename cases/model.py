@@ -9,6 +9,7 @@ from whorl.solver.boundary import Open
 from whorl.solver.materials import skin_depth
 from whorl.solver.problem import Problem
 from whorl.solver.sources import Stranded
+from whorl.solver.windings import region_resistances
 
 
 def wound_regions(case) -> set[str]:
@@ -49,6 +50,19 @@ def problem(case, tagged) -> Problem:
     """The solver's problem for ``case`` on the mesh ``tagged``."""
     materials = {name: case.materials[mat] for name, mat in case.region_material.items()}
     materials.setdefault(tagged.background, materials.get("domain"))
-    return Problem(mesh=tagged, materials=materials, sources=tuple(case.sources),
-                   boundary=dict(case.boundary), depth_m=case.depth_m, order=case.order,
-                   shorted=tuple(case.shorted))
+    problem = Problem(mesh=tagged, materials=materials, sources=tuple(case.sources),
+                      boundary=dict(case.boundary), depth_m=case.depth_m, order=case.order,
+                      shorted=tuple(case.shorted))
+    return with_winding_resistance(problem)
+
+
+def with_winding_resistance(problem: Problem) -> Problem:
+    """Each stranded source with a ``fill_factor`` gets its DC resistance from its
+    regions' material and geometry (:mod:`whorl.solver.windings`)."""
+    sources = []
+    for s in problem.sources:
+        if isinstance(s, Stranded) and s.fill_factor is not None:
+            s = replace(s, resistance=sum(region_resistances(problem, s, s.fill_factor)
+                                          .values()))
+        sources.append(s)
+    return replace(problem, sources=tuple(sources))

@@ -23,11 +23,12 @@ from whorl.solver.waveforms import from_dict
 KINDS = ("stranded", "massive", "applied-field")
 _DRIVEN = {"name", "kind", "regions", "return_regions"}
 _KEYS = {
-    ("stranded", False): _DRIVEN | {"turns", "current", "voltage", "phase", "resistance"},
+    ("stranded", False): _DRIVEN | {"turns", "current", "voltage", "phase", "resistance",
+                                    "fill_factor"},
     ("massive", False): _DRIVEN | {"connection", "current", "voltage", "phase", "resistance"},
     ("applied-field", False): {"name", "kind", "flux_density", "phase"},
     ("stranded", True): _DRIVEN | {"turns", "resistance", "waveform", "drive", "capacitance",
-                                   "initial_voltage"},
+                                   "initial_voltage", "fill_factor"},
     ("massive", True): _DRIVEN | {"connection", "waveform", "drive", "resistance",
                                   "capacitance", "initial_voltage"},
     ("applied-field", True): {"name", "kind", "flux_density"},
@@ -142,11 +143,33 @@ def _driven(ctx, table, name, kind, regions, conductivity, transient):
     resistance = table.positive("resistance", "resistance", 0.0, zero=True)
     if kind == "stranded":
         turns = table.positive("turns", "dimensionless", 1.0)
+        fill = _fill_factor(table, (*listed, *back), conductivity)
         return Stranded(name, listed, turns, current, voltage, resistance, back,
-                        **extra), waveform
+                        **extra, fill_factor=fill), waveform
     connection = table.string("connection", "series", ("series", "parallel"))
     return Massive(name, listed, connection, current, voltage, back,
                    resistance=resistance, **extra), waveform
+
+
+def _fill_factor(table: Table, regions, conductivity) -> float | None:
+    """The winding's copper fill (0 < f <= 1) when its DC resistance is to be computed
+    from the regions' material (default 1 when a region conducts); None when
+    ``resistance`` is given or no region conducts."""
+    conducting = [r for r in regions if conductivity(r) > 0]
+    if table.has("fill_factor"):
+        if table.has("resistance"):
+            raise table.error("fill_factor", "give resistance or fill_factor, not both: the "
+                                             "fill factor only serves to compute the resistance")
+        if not conducting:
+            raise table.error("fill_factor", "the winding's regions do not conduct: give their "
+                                             "material a conductivity, or give resistance")
+        fill = table.positive("fill_factor", "dimensionless")
+        if fill > 1:
+            raise table.error("fill_factor", f"must be at most 1, got {fill:g}")
+        return fill
+    if table.has("resistance") or not conducting:
+        return None
+    return 1.0
 
 
 def _applied(ctx: Context, table: Table, name: str, transient: bool) -> AppliedField:

@@ -29,7 +29,7 @@ from whorl.postprocess.plots import (
 from whorl.postprocess.records import solution_record
 from whorl.postprocess.report import write_report
 from whorl.postprocess.series_plots import plot_series
-from whorl.postprocess.tables import REGION_COLUMNS, line_rows, region_rows, write_csv
+from whorl.postprocess.tables import line_rows, region_table, write_csv
 from whorl.postprocess.vtu import write_fields_vtu
 from whorl.solver.harmonic import solve_harmonic
 
@@ -181,8 +181,8 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
     path.write_text(json.dumps(results, indent=2, allow_nan=True), encoding="utf-8")
     files.append(path)
     if "solutions" in results:
-        files.append(write_csv(folder / "regions.csv", REGION_COLUMNS,
-                               region_rows(results["solutions"])))
+        files.append(write_csv(folder / "regions.csv",
+                               *region_table(results["solutions"], case.axisymmetric)))
     for line in case.lines:
         header, rows = None, []
         for s in solutions:

@@ -19,6 +19,7 @@ from whorl.postprocess.loops import axisymmetric_loop, planar_loop
 from whorl.postprocess.probes import probe
 from whorl.postprocess.regions import region_totals
 from whorl.solver.sources import Stranded
+from whorl.solver.windings import resistance_shares
 
 log = logging.getLogger(__name__)
 
@@ -111,6 +112,29 @@ def derived_numbers(solution, regions, sources) -> dict:
             "loss_in_unsourced_conductors_w": work}
 
 
+def add_windings(solution, record) -> None:
+    """Stranded regions as engineers read them: ``current_a`` the conductor current (the
+    source's, negative in return regions), ``ampere_turns_a`` the net current through
+    the section (turns x current), and the winding's copper loss R |I|^2 shared among
+    its regions (:func:`~whorl.solver.windings.resistance_shares`) in ``loss_w`` and
+    ``winding_loss_w``, so that region losses add up to the terminal power."""
+    for s in solution.problem.sources:
+        if not isinstance(s, Stranded):
+            continue
+        current = solution.source_current(s)
+        loss = s.resistance * abs(current) ** 2
+        shares = resistance_shares(solution.problem, s)
+        for name in (*s.regions, *s.return_regions):
+            r = record["regions"][name]
+            sign = -1.0 if name in s.return_regions else 1.0
+            r["ampere_turns_a"] = r["current_a"]
+            r["current_a"] = pair(sign * current)
+            r["current_rms_a"] = float(abs(current))
+            r["winding_loss_w"] = float(shares[name] * loss)
+            r["loss_w"] = float(r["loss_w"] + shares[name] * loss)
+    record["totals"]["loss_w"] = float(sum(r["loss_w"] for r in record["regions"].values()))
+
+
 def solution_record(solution, points=None, loops=None) -> dict:
     """The ``solutions[i]`` entry of results.json.
 
@@ -144,6 +168,7 @@ def solution_record(solution, points=None, loops=None) -> dict:
             parts = [regions[r].force_n for r in (*s.regions, *s.return_regions)]
             record["sources"][s.name]["force_n"] = [float(sum(f[0] for f in parts)),
                                                     float(sum(f[1] for f in parts))]
+    add_windings(solution, record)
     for name in solution.problem.mesh.regions:
         force = shell_force(solution, name, fields)
         record["regions"][name]["force_maxwell_n"] = list(force) if force else None

@@ -16,6 +16,7 @@ import math
 from pathlib import Path
 
 from whorl.postprocess.loops import EMF_SIGN
+from whorl.postprocess.tables import is_empty
 
 #: Cautions shown prominently near the top of every report.
 CAUTIONS = (
@@ -122,18 +123,28 @@ def _regions(sol, axisym) -> str:
     # Net currents below this are round-off (a conductor with open ends): shown as 0.
     noise = NOISE * max((abs(_complex(r.get("current_a"))) for r in regions.values()),
                         default=0.0)
+    wound = any("ampere_turns_a" in r for r in regions.values())
+    # Regions with nothing in them (air in no source) get no row; a force component
+    # that is zero everywhere (Fr of full rings) no column.
+    regions = {n: r for n, r in regions.items() if not is_empty(r)}
+    forces = [r.get("force_n") or (0.0, 0.0) for r in regions.values()]
+    used = [k for k in (0, 1) if any(f[k] for f in forces)]
     rows = []
     for name, r in regions.items():
         current = _complex(r.get("current_a"))
         rms = r.get("current_rms_a", abs(current))
         shown = ([_num(rms, "A", shown=0.0), "<td>-</td>"] if abs(current) <= noise
                  else [_num(rms, "A"), _phase(current)])
-        force = r.get("force_n") or (None, None)
+        if wound:
+            at = r.get("ampere_turns_a")
+            shown.append(_num(abs(_complex(at)), "A") if at else "<td>-</td>")
+        force = r.get("force_n") or (0.0, 0.0)
         rows.append([_name(name), *shown, _num(r.get("loss_w"), "W"),
-                     _num(r.get("magnetic_energy_j"), "J"), _num(force[0], "N"),
-                     _num(force[1], "N")])
-    return _table("Regions", ("region", "current (RMS)", "phase", "loss", "stored energy",
-                              f"{fx}", f"{fy}"), rows)
+                     _num(r.get("magnetic_energy_j"), "J"),
+                     *(_num(force[k], "N") for k in used)])
+    header = ("region", "current (RMS)", "phase", *(("ampere-turns (RMS)",) if wound else ()),
+              "loss", "stored energy", *((fx, fy)[k] for k in used))
+    return _table("Regions", header, rows)
 
 
 def _sources(sol) -> str:
@@ -238,7 +249,8 @@ def write_report(results: dict, images: dict | None, path, tables: dict | None =
     ----------
     results : dict
         In the shape of results.json: ``case``, ``parameters``, ``mesh``,
-        ``timing_s``, ``solver``, ``solutions`` (and optionally ``caution``).
+        ``timing_s``, ``solver``, ``solutions``; its ``caution`` text says in one
+        paragraph what :data:`CAUTIONS` lists, so the page shows the list only.
     images : dict of str to path, optional
         Caption -> PNG (or JPEG, SVG) file, embedded in the page in this order.
     path : str or path-like
@@ -263,9 +275,7 @@ def write_report(results: dict, images: dict | None, path, tables: dict | None =
     order = mesh.get("order")
     body = [f"<header><h1>{_e(title)}</h1><p>{_e(facts)}</p></header><main>",
             '<section class="caution"><h2>Caution</h2><ul>'
-            + "".join(f"<li>{_e(c)}</li>" for c in CAUTIONS) + "</ul>"
-            + (f"<p>{_e(results['caution'])}</p>" if results.get("caution") else "")
-            + "</section>"]
+            + "".join(f"<li>{_e(c)}</li>" for c in CAUTIONS) + "</ul></section>"]
     if results.get("warnings"):
         body.append('<section class="caution"><h2>Warnings about this model</h2><ul>'
                     + "".join(f"<li>{_e(w)}</li>" for w in results["warnings"])

@@ -68,23 +68,35 @@ def summary_text(results: dict) -> str:
         lines += series_summary(results["series"])
     for sol in results.get("solutions", []):
         lines.append("")
+        totals = sol["totals"]
+        winding = totals.get("winding_loss_w") or 0.0
+        of_which = f" (winding copper loss {_eng(winding, 'W')})" if winding > 0 else ""
         lines.append(f"frequency {_eng(sol['frequency_hz'], 'Hz')}: total loss "
-                     f"{_eng(sol['totals']['loss_w'], 'W')}, stored energy "
-                     f"{_eng(sol['totals']['magnetic_energy_j'], 'J')}")
+                     f"{_eng(totals['loss_w'], 'W')}{of_which}, stored energy "
+                     f"{_eng(totals['magnetic_energy_j'], 'J')}")
+        if sol["sources"]:
+            delivered = sum(s["power_w"] for s in sol["sources"].values())
+            lines.append(f"  power at the terminals {_eng(delivered, 'W')}")
         eff = sol.get("derived", {}).get("heating_efficiency")
         if eff is not None and sol["sources"]:
             lines.append(f"  heating efficiency (loss in conductors outside any source / all "
                          f"losses): {100 * eff:.1f} %")
         rows = [(name, r) for name, r in sol["regions"].items()
                 if r["loss_w"] > 0 or r["current_rms_a"] > 0]
+        wound = any("ampere_turns_a" in r for _, r in rows)
         if rows:
-            lines.append(f"  {'region':<20} {'loss':>12} {'current (RMS)':>16}")
+            lines.append(f"  {'region':<20} {'loss':>12} {'current (RMS)':>16}"
+                         + (f" {'ampere-turns (RMS)':>19}" if wound else ""))
             for name, r in rows:
+                at = r.get("ampere_turns_a")
                 lines.append(f"  {name:<20} {_eng(r['loss_w'], 'W'):>12} "
-                             f"{_eng(r['current_rms_a'], 'A'):>16}")
+                             f"{_eng(r['current_rms_a'], 'A'):>16}"
+                             + (f" {_eng(abs(complex(*at)), 'A'):>19}" if at else ""))
         for name, s in sol["sources"].items():
             z = complex(*s["impedance_ohm"])
-            lines.append(f"  source {name}: |Z| {_eng(abs(z), 'ohm')}, "
+            lines.append(f"  source {name}: I {_eng(abs(complex(*s['current_a'])), 'A')}, "
+                         f"V {_eng(abs(complex(*s['voltage_v'])), 'V')} (RMS at the terminals), "
+                         f"|Z| {_eng(abs(z), 'ohm')}, "
                          f"R {_eng(s['resistance_ohm'], 'ohm')}, "
                          f"L {_eng(s['inductance_h'], 'H')}, P {_eng(s['power_w'], 'W')}, "
                          f"Q {_eng(s['reactive_power_var'], 'var')}")

@@ -12,9 +12,6 @@ import numpy as np
 
 from whorl.postprocess.probes import line_points, probe
 
-REGION_COLUMNS = ("frequency_hz", "region", "current_re_a", "current_im_a", "current_rms_a",
-                  "loss_w", "magnetic_energy_j", "force_x_n", "force_y_n")
-
 
 def write_csv(path, header, rows) -> Path:
     """Write ``rows`` under ``header`` to ``path`` (UTF-8, comma separated)."""
@@ -26,14 +23,35 @@ def write_csv(path, header, rows) -> Path:
     return path
 
 
-def region_rows(records) -> list[list]:
-    """One row per region per frequency from ``solutions`` records of results.json."""
+def is_empty(region: dict) -> bool:
+    """A region with nothing in it (air in no source): no current, loss or force."""
+    return (region["current_rms_a"] == 0 and region["loss_w"] == 0
+            and not any(region.get("force_n") or ()))
+
+
+def region_table(records, axisymmetric: bool = False) -> tuple[list[str], list[list]]:
+    """Header and rows of regions.csv from ``solutions`` records of results.json: one row
+    per region per frequency, leaving out regions with nothing in them at every
+    frequency (:func:`is_empty`) and columns that are zero in every row. Stranded
+    regions give the conductor current and, beside it, the ampere-turns."""
+    fr, fz = ("force_r_n", "force_z_n") if axisymmetric else ("force_x_n", "force_y_n")
+    columns = ["frequency_hz", "region", "current_re_a", "current_im_a", "current_rms_a",
+               "ampere_turns_rms_a", "loss_w", "winding_loss_w", "magnetic_energy_j", fr, fz,
+               "radial_load_n"]
+    keep = {name for rec in records for name, r in rec["regions"].items() if not is_empty(r)}
     rows = []
     for rec in records:
         for name, r in rec["regions"].items():
+            if name not in keep:
+                continue
+            at = r.get("ampere_turns_a")
             rows.append([rec["frequency_hz"], name, *r["current_a"], r["current_rms_a"],
-                         r["loss_w"], r["magnetic_energy_j"], *r["force_n"]])
-    return rows
+                         float(np.hypot(*at)) if at else 0.0, r["loss_w"],
+                         r.get("winding_loss_w", 0.0), r["magnetic_energy_j"], *r["force_n"],
+                         r.get("radial_load_n") or 0.0])
+    used = [k for k, c in enumerate(columns)
+            if k < 2 or any(row[k] != 0 for row in rows)]
+    return [columns[k] for k in used], [[row[k] for k in used] for row in rows]
 
 
 def line_rows(solution, start_m, end_m, samples: int, unit_m: float, unit: str):

@@ -28,6 +28,10 @@ class Stranded:
     as ``drive`` says). A ``capacitance`` (F) charged to ``initial_voltage``
     (V) in series turns the source into a capacitor discharge through the
     winding and its resistance (its current is then an unknown).
+
+    ``fill_factor`` (0 < f <= 1), when not None, asks the case layer to set
+    ``resistance`` from the regions' material and geometry
+    (:mod:`whorl.solver.windings`); the solver itself only uses ``resistance``.
     """
 
     name: str
@@ -42,6 +46,7 @@ class Stranded:
     drive: str = "current"
     capacitance: float | None = None
     initial_voltage: float = 0.0
+    fill_factor: float | None = None
 
 
 @dataclass(frozen=True)
