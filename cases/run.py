@@ -111,13 +111,17 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None):
         timing["postprocess"] = 0.0
     else:
         solutions, info = solve_harmonic(problem, list(case.study.frequencies),
-                                         backend=case.solver, progress=say)
+                                         backend=case.solver, progress=say,
+                                         reduced=case.study.reduced,
+                                         tolerance=case.study.reduced_tolerance)
         system = solutions[0].system
         say("postprocessing")
         t1 = time.perf_counter()
         points = {p.name: (p.at[0] * case.unit_m, p.at[1] * case.unit_m) for p in case.points}
         body["solutions"] = [solution_record(s, points, loops) for s in solutions]
         timing["postprocess"] = time.perf_counter() - t1
+        if "reduced" in info:
+            body["frequency_sweep"] = info["reduced"]
         body["warnings"] = model_warnings(case, mesh, body["solutions"])
         for text in body["warnings"]:
             log.warning(text)

@@ -48,6 +48,10 @@ class StudySpec:
     step_s: float | None = None
     scheme: str = "bdf2"
     save_every: int = 10
+    reduced: str = "auto"            # harmonic: reduced-order sweep "auto", "on" or "off"
+    reduced_tolerance: float = 1e-6  # relative, on impedances and region losses
+    tank_capacitance: float | None = None  # F: resonance with the source's tank capacitor
+    tank_connection: str = "parallel"      # "series" or "parallel"
 
 
 @dataclass(frozen=True)

@@ -7,7 +7,7 @@ import time
 
 import numpy as np
 
-from whorl.solver import linalg
+from whorl.solver import frequency_rom, linalg
 from whorl.solver.errors import SolveError
 from whorl.solver.reduction import reduce
 from whorl.solver.solution import Solution
@@ -16,15 +16,27 @@ from whorl.solver.system import assemble
 log = logging.getLogger(__name__)
 
 
-def solve_system(system, frequencies, backend: str = "auto", progress=None):
+def solve_system(system, frequencies, backend: str = "auto", progress=None,
+                 reduced: str = "auto", tolerance: float = frequency_rom.TOLERANCE):
     """Solve an assembled system at each frequency in Hz (0 gives the static solution).
 
     Returns ``(solutions, info)`` where ``info`` has the backend's name and
     the time spent factorising and solving. Assembly and reduction are done once;
     a backend that can (``linalg.session``) also analyses the sparsity pattern once
     and only refactorises numerically at the next frequency.
+
+    ``reduced`` ("auto", "on" or "off") asks for the certified reduced-order sweep of
+    :mod:`.frequency_rom` ("auto": from ``frequency_rom.AUTO_FROM`` distinct frequencies
+    on) with relative ``tolerance`` on impedances and losses; nonlinear and moving
+    models, and the iterative backend, fall back to full solves (said in the log).
+    ``info["reduced"]`` then records the full-solve frequencies and the estimates.
     """
     name, factorize = linalg.choose(backend)
+    if frequency_rom.wanted(reduced, frequencies):
+        why = frequency_rom.fallback_reason(system.problem, name)
+        if why is None:
+            return _solve_reduced(system, frequencies, backend, progress, tolerance)
+        log.info("reduced frequency sweep not used: %s; every frequency is solved in full", why)
     factorize = linalg.session(factorize)  # keeps the symbolic analysis across frequencies
     red = reduce(system)
     solutions, convergence = [], []
@@ -50,12 +62,33 @@ def solve_system(system, frequencies, backend: str = "auto", progress=None):
     return solutions, info
 
 
-def solve_harmonic(problem, frequencies, backend: str = "auto", progress=None):
+def _solve_reduced(system, frequencies, backend, progress, tolerance):
+    """The reduced sweep for the positive frequencies, full solves for 0 Hz."""
+    t0 = time.perf_counter()
+    static = [f for f in frequencies if f == 0]
+    positive = [f for f in frequencies if f > 0]
+    vectors, report, name = frequency_rom.reduced_sweep(system, positive, backend, tolerance,
+                                                        progress)
+    by_f = dict(zip([float(f) for f in positive], vectors, strict=True))
+    if static:
+        sols, _ = solve_system(system, [0.0], backend, progress, reduced="off")
+        by_f[0.0] = sols[0].x
+    solutions = [Solution(system, float(f), by_f[float(f)]) for f in frequencies]
+    elapsed = time.perf_counter() - t0
+    info = {"backend": name, "solve_s": elapsed, "unknowns": report.unknowns,
+            "reduced": report.record([float(f) for f in frequencies])}
+    if static:
+        info["reduced"]["full_solve_frequencies_hz"].insert(0, 0.0)
+    return solutions, info
+
+
+def solve_harmonic(problem, frequencies, backend: str = "auto", progress=None,
+                   reduced: str = "auto", tolerance: float = frequency_rom.TOLERANCE):
     """Assemble ``problem`` once and solve it at each frequency (Hz); see :func:`solve_system`."""
     t0 = time.perf_counter()
     system = assemble(problem, progress)
     t_asm = time.perf_counter() - t0
-    solutions, info = solve_system(system, frequencies, backend, progress)
+    solutions, info = solve_system(system, frequencies, backend, progress, reduced, tolerance)
     info["assemble_s"] = t_asm
     return solutions, info
 

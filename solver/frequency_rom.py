@@ -1,0 +1,405 @@
+r"""A frequency response from a few factorisations: rational Krylov projection.
+
+The harmonic system (S0 + s S1) x = b0 + s b1, s = j omega, with real S0 and
+S1 assembled once, is projected onto a real orthonormal basis V built from
+full solves at a few *expansion frequencies* s_k and, at each, the first
+moments of the solution about s_k: the rational Krylov space
+
+    span{ x_k, (A_k^{-1} S1) x_k, (A_k^{-1} S1)^2 x_k, ... },   A_k = S0 + s_k S1,
+
+of A. Ruhe, "Rational Krylov sequence methods for eigenvalue computation",
+Linear Algebra Appl. 58 (1984) 391-405, and its use for frequency sweeps as
+multipoint moment matching (E. J. Grimme, "Krylov projection methods for model
+reduction", PhD thesis, University of Illinois, 1997). Real and imaginary
+parts of every vector enter the basis apart, so the projected matrices stay
+real and the moments match at s_k and its conjugate. The projected system
+(V^T S0 V + s V^T S1 V) y = V^T b(s) is solved at every requested frequency
+(Galerkin: the power balance x^H A x = x^H b holds exactly for x = V y).
+
+Expansion frequencies are picked greedily, in the manner of the reduced-basis
+method (Hesthaven, Rozza, Stamm, "Certified Reduced Basis Methods for
+Parametrized Partial Differential Equations", Springer 2016, ch. 3): the first
+in the middle of the range (on a log scale), then one at the requested
+frequency with the largest error estimate, until every estimate is below the
+tolerance.
+
+Error estimate. The error of the reduced solution is e = A(s)^{-1} r(s) with
+the full residual r(s) = b(s) - A(s) V y. The factorisation of a neighbouring
+expansion frequency gives the *preconditioned residual*
+e_k = A_k^{-1} r(s) = A_k^{-1} A(s) e, for free in the basis of V and
+W_k = A_k^{-1} S1 V:
+
+    e_k = V (c_k + (s - s_k) d_k - y) - (s - s_k) W_k y,
+
+with x_k = V c_k and A_k^{-1} b1 = V d_k. For the eddy-current pencil
+(K symmetric positive definite, M symmetric positive semi-definite) the
+eigenvalues of A(s)^{-1} A_k are (lambda + j omega_k) / (lambda + j omega),
+lambda >= 0, so |e| <= max(1, omega_k / omega) |e_k| in the energy norm; the
+estimate takes the smaller bound of the two neighbouring expansion
+frequencies. From e_k it bounds the relative error of every quantity the
+tolerance speaks of:
+
+- a source's impedance: the relative error of its current (voltage-driven)
+  or its voltage (current-driven), both linear in x;
+- a region's loss L_r(x) (a Hermitian form in x): by Cauchy-Schwarz
+  |L_r(x + e) - L_r(x)| / L_r(x) <= 2 sqrt(L_r(e) / L_r(x)) + L_r(e) / L_r(x).
+
+Regions whose loss is below ``LOSS_FLOOR`` times the total are left out.
+Everything is evaluated with small Gram matrices, so certifying a frequency
+costs O(m^2) once the basis (size m) is there.
+"""
+
+from __future__ import annotations
+
+import logging
+import time
+from dataclasses import dataclass, field
+
+import numpy as np
+from skfem import asm
+from threadpoolctl import threadpool_limits
+
+from whorl.solver import linalg
+from whorl.solver.errors import SolveError
+from whorl.solver.reduction import reduce
+from whorl.solver.sources import Massive, Stranded, current_is_unknown
+
+log = logging.getLogger(__name__)
+
+TOLERANCE = 1e-6      # default relative tolerance on impedances and region losses
+AUTO_FROM = 8         # "auto": reduce from this many distinct frequencies on
+MOMENTS = 6           # complex Krylov vectors per expansion frequency
+LOSS_FLOOR = 1e-9     # regions with less than this share of the total loss are not certified
+MAX_POINTS = 24       # expansion frequencies at most; then the rest is solved in full
+
+
+@dataclass
+class SweepReport:
+    """What the reduced sweep did: JSON-ready."""
+
+    tolerance: float
+    expansion_hz: list = field(default_factory=list)
+    basis_size: int = 0
+    estimates: dict = field(default_factory=dict)   # frequency -> estimated relative error
+    full_hz: list = field(default_factory=list)     # frequencies solved in full
+    unknowns: int = 0
+
+    def record(self, frequencies) -> dict:
+        return {
+            "method": "rational Krylov (greedy expansion frequencies)",
+            "tolerance": self.tolerance,
+            "basis_size": self.basis_size,
+            "expansion_frequencies_hz": sorted(self.expansion_hz),
+            "full_solve_frequencies_hz": sorted(set(self.full_hz)),
+            "estimated_error": [self.estimates.get(float(f), 0.0) for f in frequencies],
+        }
+
+
+def fallback_reason(problem, backend_name: str) -> str | None:
+    """Why ``problem`` cannot be reduced (None when it can): nonlinear materials,
+    motion, or a backend without a reusable factorisation."""
+    if any(getattr(m, "bh_curve", None) is not None for m in problem.materials.values()):
+        return "a material has a B-H curve (nonlinear)"
+    if getattr(problem, "motions", None):
+        return "the model has moving conductors"
+    if backend_name == "iterative":
+        return "the iterative backend keeps no factorisation to reuse"
+    return None
+
+
+def wanted(mode: str, frequencies) -> bool:
+    """Whether the reduced sweep is asked for: ``mode`` "on", "off" or "auto"."""
+    distinct = {float(f) for f in frequencies if f > 0}
+    if mode == "off" or not distinct:
+        return False
+    return mode == "on" or len(distinct) >= AUTO_FROM
+
+
+class _Basis:
+    """A real orthonormal basis (columns), grown by Gram-Schmidt applied twice."""
+
+    def __init__(self, n):
+        self.cols = np.zeros((n, 0))
+
+    def add(self, v, drop=1e-10) -> int:
+        """Add the real and imaginary parts of ``v``; returns how many columns were kept."""
+        kept = 0
+        for part in (np.real(v), np.imag(v)):
+            w = np.array(part, dtype=float)
+            norm0 = np.linalg.norm(w)
+            if norm0 == 0:
+                continue
+            for _ in range(2):
+                w -= self.cols @ (self.cols.T @ w)
+            norm = np.linalg.norm(w)
+            if norm > drop * norm0:
+                self.cols = np.column_stack([self.cols, w / norm])
+                kept += 1
+        return kept
+
+
+class _Forms:
+    """Linear and quadratic quantities of the full vector x the estimate looks at.
+
+    Loss of region r (W): L_r(x) = kappa [omega^2 a^H P_r a + g_r |u|^2
+    + 2 Re(-j omega conj(u) c_r^T a)], u the voltage unknown of r's branch (none:
+    u = 0). Source functionals: the current (driven) or the omega-dependent part
+    of the voltage (current-driven). Everything is kept on the few unknowns these
+    quantities touch (``rows``, full numbering), so projections cost little.
+    """
+
+    def __init__(self, system):
+        problem = system.problem
+        nf, nb = system.n_field, len(system.branches)
+        branch_of = {r: i for i, br in enumerate(system.branches) for r in br.regions}
+        raw_loss, raw_src, used = [], [], []
+        for name in problem.mesh.regions:
+            if not np.any(system.sigma[problem.mesh.elements(name)] > 0):
+                continue
+            rb = system.region_basis(name)
+            sig = system.sigma[rb.tind][:, None] * np.ones((1, rb.X.shape[1]))
+            P = asm(system.form.conductor_mass, rb, sigma=sig).tocsr()
+            rows = np.unique(P.indices)
+            c = np.asarray(asm(system.form.voltage_coupling, rb, sigma=sig))[rows]
+            g = float(asm(system.form.voltage_conductance, rb, sigma=sig))
+            b = branch_of.get(name)
+            raw_loss.append((name, rows, P[rows][:, rows], c, g, None if b is None else nf + b))
+            used += [rows] + ([np.array([nf + b])] if b is not None else [])
+        for s in problem.sources:
+            if not isinstance(s, Massive | Stranded):
+                continue
+            v = np.zeros(system.size)
+            if current_is_unknown(s):
+                v[nf + nb + system.driven.index(s)] = 1.0
+                kind, scaled = "current", False
+            elif isinstance(s, Stranded):
+                v[:nf] = system.kappa * system.stranded_load[s.name]
+                kind, scaled = "voltage", True
+            else:
+                for i, br in enumerate(system.branches):
+                    if br.source == s.name:
+                        v[nf + i] = br.sign * system.kappa
+                kind, scaled = "voltage", False
+            idx = np.flatnonzero(v)
+            raw_src.append((s.name, kind, idx, v[idx], scaled))
+            used.append(idx)
+        self.rows = np.unique(np.concatenate(used)) if used else np.zeros(0, dtype=np.int64)
+        local = lambda idx: np.searchsorted(self.rows, idx)  # noqa: E731
+        self.loss = [(name, local(rows), P, c, g, None if u is None else int(local(u)))
+                     for name, rows, P, c, g, u in raw_loss]
+        self.sources = [(name, kind, local(idx), vals, scaled)
+                        for name, kind, idx, vals, scaled in raw_src]
+        self.fixed_voltage = {s.name: s.resistance * complex(s.current) for s in problem.sources
+                              if isinstance(s, Massive | Stranded) and not current_is_unknown(s)}
+
+    def grams(self, Z):
+        """Projections of every form on the columns of ``Z`` (rows: ``self.rows``)."""
+        loss = []
+        for name, rows, P, c, g, u in self.loss:
+            Zr = Z[rows]
+            loss.append((name, Zr.conj().T @ (P @ Zr), c @ Zr, g, None if u is None else Z[u]))
+        src = [(name, kind, vals @ Z[idx], scaled) for name, kind, idx, vals, scaled in
+               self.sources]
+        return loss, src
+
+
+def _loss_value(gram, z, omega, kappa):
+    """L_r for coefficients ``z`` of the columns ``gram`` was made from (W)."""
+    _, PZZ, cZ, g, uZ = gram
+    val = omega ** 2 * np.real(np.conj(z) @ (PZZ @ z))
+    if uZ is not None:
+        u = uZ @ z
+        val += g * abs(u) ** 2 + 2 * np.real(-1j * omega * np.conj(u) * (cZ @ z))
+    return kappa * max(float(val), 0.0)
+
+
+class _Sweep:
+    def __init__(self, system, frequencies, factorize, tolerance, progress):
+        self.system = system
+        self.red = reduce(system)
+        self.factorize = factorize
+        self.tol = tolerance
+        self.progress = progress or (lambda message: None)
+        red = self.red
+        n = red.free.size
+        self.b0 = red.rhs(system.rhs(), 1.0, 0.0)
+        self.b1 = red.rhs(np.zeros(system.size), 0.0, 1.0)
+        self.has_b1 = bool(np.any(self.b1 != 0))
+        self.x_fixed = red.expand(np.zeros(n), 1.0)  # the affine part (fixed values)
+        self.basis = _Basis(n)
+        self.points = {}  # frequency -> (solve, x_k)
+        self.forms = _Forms(system)
+        # where each observed unknown sits among the free ones (-1: fixed)
+        where = np.full(red.size, -1)
+        where[red.free] = np.arange(red.free.size)
+        self.obs_free = where[red.renumber[self.forms.rows]]
+        self.freqs = sorted({float(f) for f in frequencies if f > 0})
+        self.report = SweepReport(tolerance, unknowns=int(n))
+
+    def full(self, f):
+        """A full solve at f (Hz), kept as an expansion frequency."""
+        s = 2j * np.pi * f
+        self.progress(f"full solve at {f:g} Hz ({self.red.free.size} unknowns)")
+        solve = self.factorize(self.red.matrix(1.0, s))
+        x = solve(self.b0 + s * self.b1)
+        if not np.all(np.isfinite(x)):
+            raise SolveError(f"the solution at {f:g} Hz is not finite: the system is singular "
+                             "(a region floats or a source is not tied to anything)")
+        self.points[f] = (solve, x, np.zeros((x.size, 0), dtype=complex))
+        self.report.expansion_hz.append(f)
+        self.report.full_hz.append(f)
+        self.basis.add(x)
+        if self.has_b1:
+            self.basis.add(solve(self.b1))
+        v = x
+        S1 = self.red.S1_ff
+        for _ in range(MOMENTS - 1):
+            v = solve(S1 @ v)
+            v /= np.linalg.norm(v)
+            if self.basis.add(v) == 0:
+                break
+
+    def _observed(self, cols):
+        """The ``forms.rows`` of free-numbering columns in the full numbering (fixed: 0)."""
+        out = np.zeros((self.obs_free.size, cols.shape[1]), dtype=cols.dtype)
+        hit = self.obs_free >= 0
+        out[hit] = cols[self.obs_free[hit]]
+        return out
+
+    def project(self):
+        """Projected matrices, and for every expansion frequency what its estimate needs:
+        W_k = A_k^{-1} S1 V split as V R12 + W_perp (W_perp orthogonal to V), so that the
+        estimate's two parts are both small and its Gram sums do not cancel."""
+        V = self.basis.cols
+        red = self.red
+        m = V.shape[1]
+        self.S0r = V.T @ (red.S0_ff @ V)
+        self.S1r = V.T @ (red.S1_ff @ V)
+        self.b0r = V.T @ self.b0
+        self.b1r = V.T @ self.b1
+        Vobs = self._observed(V)
+        self.est = {}
+        for f, (solve, x, W) in list(self.points.items()):
+            if W.shape[1] < m:  # V grew: solve for the new columns only
+                W = np.column_stack([W, solve(red.S1_ff @ V[:, W.shape[1]:])])
+                self.points[f] = (solve, x, W)
+            R12 = V.T @ W
+            perp = W - V @ R12
+            R12b = V.T @ perp
+            perp -= V @ R12b
+            c = V.T @ x
+            d = V.T @ solve(self.b1) if self.has_b1 else np.zeros(m)
+            Z = np.column_stack([Vobs, self._observed(perp)])
+            self.est[f] = (c, d, R12 + R12b, self.forms.grams(Z))
+        Xd = np.column_stack([self.x_fixed[self.forms.rows], Vobs])
+        self.value_grams = self.forms.grams(Xd)
+
+    def reduced(self, f):
+        s = 2j * np.pi * f
+        return np.linalg.solve(self.S0r + s * self.S1r, self.b0r + s * self.b1r)
+
+    def estimate(self, f, y):
+        """Estimated relative error of impedances and region losses at f (see the module)."""
+        omega = 2 * np.pi * f
+        kappa = self.system.kappa
+        z_x = np.concatenate([[1.0], y])
+        loss_x, src_x = self.value_grams
+        losses = [_loss_value(g, z_x, omega, kappa) for g in loss_x]
+        total = sum(losses)
+        values = []
+        for name, kind, vZ, scaled in src_x:
+            value = vZ @ z_x
+            if kind == "voltage":
+                if scaled:
+                    value = 1j * omega * value
+                value += self.forms.fixed_voltage.get(name, 0.0)
+            values.append(abs(value))
+        below = [p for p in self.points if p <= f]
+        above = [p for p in self.points if p > f]
+        candidates = ([max(below)] if below else []) + ([min(above)] if above else [])
+        best = np.inf
+        for p in candidates:
+            c, d, R12, (loss, src) = self.est[p]
+            delta = 1j * omega - 2j * np.pi * p
+            w = np.concatenate([c + delta * d - y - delta * (R12 @ y), -delta * y])
+            factor = max(1.0, p / f)
+            worst = 0.0
+            for g, lx in zip(loss, losses, strict=True):
+                if lx <= LOSS_FLOOR * total or lx == 0:
+                    continue
+                ratio = factor ** 2 * _loss_value(g, w, omega, kappa) / lx
+                worst = max(worst, 2 * np.sqrt(ratio) + ratio)
+            for (_, _kind, vZ, scaled), value in zip(src, values, strict=True):
+                err = abs(vZ @ w) * factor * (omega if scaled else 1.0)
+                if value > 0:
+                    worst = max(worst, err / value)
+            best = min(best, worst)
+        return float(best)
+
+    def run(self):
+        fs = self.freqs
+        logs = np.log(fs)
+        start = fs[int(np.argmin(np.abs(logs - 0.5 * (logs[0] + logs[-1]))))]
+        self.full(start)
+        while True:
+            self.project()
+            worst_f, worst = None, -1.0
+            self.answers = {}
+            for f in fs:
+                if f in self.points:
+                    self.answers[f] = None
+                    self.report.estimates[f] = 0.0
+                    continue
+                y = self.reduced(f)
+                eta = self.estimate(f, y)
+                self.answers[f] = y
+                self.report.estimates[f] = eta
+                if eta > worst:
+                    worst_f, worst = f, eta
+            self.progress(f"reduced basis of {self.basis.cols.shape[1]} vectors from "
+                          f"{len(self.points)} full solves: largest estimated error "
+                          f"{max(worst, 0.0):.2e}")
+            if worst_f is None or worst <= self.tol:
+                break
+            if len(self.points) >= MAX_POINTS:
+                log.warning("reduced sweep: %d full solves did not bring every estimate "
+                            "below %g; solving the rest in full", MAX_POINTS, self.tol)
+                for f in fs:
+                    if f not in self.points and self.report.estimates[f] > self.tol:
+                        self.full(f)
+                        self.answers[f] = None
+                        self.report.estimates[f] = 0.0
+                break
+            self.full(worst_f)
+        self.report.basis_size = int(self.basis.cols.shape[1])
+
+    def vector(self, f):
+        """All unknowns (full numbering) at f: the full solution at expansion frequencies,
+        the expanded reduced one elsewhere."""
+        if f in self.points:
+            return self.red.expand(self.points[f][1])
+        return self.red.expand(self.basis.cols @ self.answers[f])
+
+
+def reduced_sweep(system, frequencies, backend="auto", tolerance=TOLERANCE, progress=None):
+    """Solve ``system`` at every frequency (Hz, all > 0) through a certified reduced model.
+
+    Returns ``(vectors, report, backend name)``: the full vector of unknowns of every
+    requested frequency (in order), and a :class:`SweepReport`.
+    """
+    name, factorize = linalg.choose(backend)
+    t0 = time.perf_counter()
+    sweep = _Sweep(system, frequencies, factorize, tolerance, progress)
+    # The dense work is on thin matrices: threaded BLAS only loses on them, and badly so
+    # when other processes share the cores.
+    with threadpool_limits(limits=1, user_api="blas"):
+        sweep.run()
+        vectors = [sweep.vector(float(f)) for f in frequencies]
+    log.info("reduced sweep: %d frequencies from %d full solves (basis %d) in %.2f s; "
+             "largest estimated error %.2e", len(sweep.freqs), len(sweep.points),
+             sweep.report.basis_size, time.perf_counter() - t0,
+             max(sweep.report.estimates.values(), default=0.0))
+    return vectors, sweep.report, name
+
+
+__all__ = ["reduced_sweep", "wanted", "fallback_reason", "SweepReport", "TOLERANCE"]
