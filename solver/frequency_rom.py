@@ -40,7 +40,8 @@ frequencies. From e_k it bounds the relative error of every quantity the
 tolerance speaks of:
 
 - a source's impedance: the relative error of its current (voltage-driven)
-  or its voltage (current-driven), both linear in x;
+  or its voltage (current-driven), both linear in x; the copper loss R |I|^2 of a
+  voltage-driven winding: 2 eps + eps^2 for a relative current error eps;
 - a region's loss L_r(x) (a Hermitian form in x): by Cauchy-Schwarz
   |L_r(x + e) - L_r(x)| / L_r(x) <= 2 sqrt(L_r(e) / L_r(x)) + L_r(e) / L_r(x).
 
@@ -329,10 +330,12 @@ class _Sweep:
                     continue
                 ratio = factor ** 2 * _loss_value(g, w, omega, kappa) / lx
                 worst = max(worst, 2 * np.sqrt(ratio) + ratio)
-            for (_, _kind, vZ, scaled), value in zip(src, values, strict=True):
+            for (_, kind, vZ, scaled), value in zip(src, values, strict=True):
                 err = abs(vZ @ w) * factor * (omega if scaled else 1.0)
                 if value > 0:
-                    worst = max(worst, err / value)
+                    rel = err / value
+                    # a driven winding's copper loss R |I|^2 moves twice as much as I
+                    worst = max(worst, 2 * rel + rel**2 if kind == "current" else rel)
             best = min(best, worst)
         return float(best)
 
