@@ -35,6 +35,7 @@ from whorl.cases.reader import Context, Table
 from whorl.cases.spec import Case
 from whorl.meshes.geometry import Geometry
 from whorl.solver.boundary import AppliedFieldSide
+from whorl.solver.sources import Stranded
 
 FORMAT = 1
 TOP_KEYS = ("format", "case", "model", "mesh", "parameters", "material", "region", "domain",
@@ -177,6 +178,7 @@ def _build(text: str, path, overrides: dict) -> Case:
     sources, waveforms = read_sources(ctx, doc, region_names, conductivity,
                                       study.kind == "transient")
     _check_applied(ctx, doc, domain.boundary, sources)
+    _check_dc_windings(ctx, sources, study)
     shorted = read_shorted(ctx, doc, region_names, conductivity, sources)
 
     geometry = Geometry(tuple(e.spec for e in entries), domain.spec, model.axisymmetric,
@@ -196,6 +198,20 @@ def _build(text: str, path, overrides: dict) -> Case:
         sweep=read_sweep(_section(ctx, doc, "sweep"), list(ctx.params)),
         path=Path(path) if path else None, document=document, text=text,
     )
+
+
+def _check_dc_windings(ctx: Context, sources, study) -> None:
+    """A voltage on a stranded winding without resistance at 0 Hz has no current that
+    satisfies it (V = R I with R = 0): refuse it here, before anything is meshed."""
+    if 0.0 not in study.frequencies:
+        return
+    for i, s in enumerate(sources, start=1):
+        if (isinstance(s, Stranded) and s.voltage is not None and s.resistance == 0
+                and s.fill_factor is None):
+            raise CaseError(f"source.{s.name}.voltage", "a voltage-driven stranded winding at "
+                            "0 Hz needs a resistance (at DC, V = R I): give `resistance`, or "
+                            "a conducting material for its regions, or drive it by current",
+                            ctx.index.find(("source", i), "voltage"))
 
 
 def _check_applied(ctx: Context, doc: dict, boundary: dict, sources) -> None:

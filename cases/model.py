@@ -66,3 +66,22 @@ def with_winding_resistance(problem: Problem) -> Problem:
                                           .values()))
         sources.append(s)
     return replace(problem, sources=tuple(sources))
+
+
+def overlap_warnings(case, covered) -> list[str]:
+    """A source's region drawn over part of another conductor (a coil drawn into the
+    shaft): the later region takes the overlap, which is rarely what was meant.
+    ``covered`` lists (earlier, later) region pairs (:func:`whorl.meshes.build.covered_regions`
+    or the mesh's ``info["covered"]``)."""
+    owner = {r: s.name for s in case.sources
+             for r in (*getattr(s, "regions", ()), *getattr(s, "return_regions", ()))}
+    out = []
+    for earlier, later in covered:
+        if later not in owner:
+            continue
+        material = case.materials[case.region_material[earlier]]
+        if material.conductivity > 0 or earlier in owner:
+            out.append(f"region {later!r} of source {owner[later]!r} covers part of the "
+                       f"conductor {earlier!r}: the overlap belongs to {later!r} and is cut out "
+                       f"of {earlier!r}; move or resize one of them unless that is meant")
+    return out

@@ -67,9 +67,20 @@ def resolve(table: Mapping, overrides: Mapping | None = None, key_of=None) -> di
     for name in overrides:
         if not isinstance(values[name], Quantity) and isinstance(resolved[name], Quantity):
             values[name] = Quantity(values[name], resolved[name].units)
+        _same_kind(name, values[name], resolved[name], table[name], key_of)
     # a bare override takes the file's unit; parameters that depend on it are recomputed
     fixed = {name: values[name] for name in overrides}
     return _resolve(merged, fixed, key_of, overridden=set(overrides))
+
+
+def _same_kind(name, new, old, written, key_of) -> None:
+    """An override must be the same kind of quantity as the file's value (both with a
+    unit); else the error names ``--set NAME``, not the key the value ends up in."""
+    a, b = (v.dimensionality if isinstance(v, Quantity) else None for v in (new, old))
+    if a is not None and b is not None and a != b:
+        raise CaseError(key_of(name, True)[0],
+                        f"expected a value in units like the file's {written!r} "
+                        f"({b}), got {new:~} ({a})")
 
 
 def _default_key(name: str, overridden: bool):

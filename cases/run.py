@@ -101,6 +101,9 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None):
     timing["mesh"] = time.perf_counter() - t0
     problem = model.problem(case, mesh)
     loops = [loop_description(loop, case.unit_m) for loop in case.loops]
+    overlaps = model.overlap_warnings(case, mesh.info.get("covered", ()))
+    for text in overlaps:
+        log.warning(text)
     body = {}
     if case.study.kind == "transient":
         series, files, info = solve_transient(case, problem, loops, say, folder)
@@ -125,6 +128,7 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None):
         body["warnings"] = model_warnings(case, mesh, body["solutions"])
         for text in body["warnings"]:
             log.warning(text)
+    body["warnings"] = overlaps + body.get("warnings", [])
     timing["assemble"] = info["assemble_s"]
     timing["solve"] = info["solve_s"]
     timing["total"] = time.perf_counter() - t0

@@ -76,7 +76,7 @@ def build_mesh(geometry: Geometry, progress=None) -> TaggedMesh:
         gmsh.model.setCurrent(model)
         _set_options(geometry, plan)
         say("drawing geometry")
-        owners = _draw(geometry)
+        owners, covered = _draw(geometry)
         sides = _side_curves(geometry)
         kelvin = _exterior_disk(geometry, owners, sides) if geometry.domain.open_boundary else None
         _physical_groups(geometry, owners, sides)
@@ -109,9 +109,31 @@ def build_mesh(geometry: Geometry, progress=None) -> TaggedMesh:
         max_size=plan.max_size,
         surface_sizes={r.name: r.surface for r in plan.regions},
         time_s=time.perf_counter() - start,
+        covered=covered,
     )
     say(f"mesh ready: {tagged.info['nodes']} nodes, {tagged.info['elements']} elements")
     return tagged
+
+
+def covered_regions(geometry: Geometry) -> list[tuple[str, str]]:
+    """Pairs (earlier, later) of regions where the later one covers part of the earlier,
+    from drawing and fragmenting the geometry without meshing it (fast; for checks)."""
+    initialised_here = not gmsh.isInitialized()
+    if initialised_here:
+        _initialize()
+    model = f"whorl-check-{id(geometry):x}"
+    try:
+        gmsh.option.setNumber("General.Terminal", 0)
+        gmsh.model.add(model)
+        gmsh.model.setCurrent(model)
+        _, covered = _draw(geometry)
+    finally:
+        try:
+            gmsh.model.remove()
+        finally:
+            if initialised_here:
+                gmsh.finalize()
+    return covered
 
 
 def _initialize():
@@ -168,8 +190,10 @@ def _domain_surface(occ, domain: DomainSpec, axisymmetric: bool) -> int:
     raise MeshError(f"unknown domain shape '{domain.shape}'")
 
 
-def _draw(geometry: Geometry) -> dict[str, list[int]]:
-    """Draw, fragment and assign fragments: region name (and background) -> surface tags."""
+def _draw(geometry: Geometry) -> tuple[dict[str, list[int]], list[tuple[str, str]]]:
+    """Draw, fragment and assign fragments: region name (and background) -> surface tags,
+    and the pairs (earlier, later) of regions where the later one covers part of the
+    earlier."""
     occ = gmsh.model.occ
     domain = _domain_surface(occ, geometry.domain, geometry.axisymmetric)
     shapes = []
@@ -184,9 +208,12 @@ def _draw(geometry: Geometry) -> dict[str, list[int]]:
         raise MeshError(f"cannot combine the regions: {err}{_log_tail()}") from err
     inside = {tag for dim, tag in parts[0] if dim == 2}
     owner = {tag: None for tag in inside}
+    covered = set()  # (earlier region, later region that covers part of it)
     for region, pieces in zip(geometry.regions, parts[1:], strict=True):
         for dim, tag in pieces:
             if dim == 2:
+                if owner.get(tag) is not None:
+                    covered.add((owner[tag], region.name))
                 owner[tag] = region.name
     stray = [tag for tag in owner if tag not in inside]
     for tag in stray:
@@ -203,7 +230,7 @@ def _draw(geometry: Geometry) -> dict[str, list[int]]:
     for region in geometry.regions:
         if not owners[region.name]:
             raise MeshError(f"region '{region.name}' is covered entirely by later regions")
-    return owners
+    return owners, sorted(covered)
 
 
 def _side_curves(geometry: Geometry) -> dict[str, list[int]]:

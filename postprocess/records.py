@@ -18,7 +18,7 @@ from whorl.postprocess.forces import shell_force
 from whorl.postprocess.loops import axisymmetric_loop, planar_loop
 from whorl.postprocess.probes import probe
 from whorl.postprocess.regions import region_totals
-from whorl.solver.sources import Stranded
+from whorl.solver.sources import Massive, Stranded
 from whorl.solver.windings import resistance_shares
 
 log = logging.getLogger(__name__)
@@ -45,7 +45,7 @@ def region_record(t) -> dict:
     }
 
 
-def source_record(s, omega) -> dict:
+def source_record(s, omega, tuning: bool = True) -> dict:
     z = complex(s.impedance_ohm)
     apparent = abs(complex(s.power_w, s.reactive_power_var))
     x = z.imag
@@ -60,9 +60,12 @@ def source_record(s, omega) -> dict:
         "flux_linkage_wb": pair(s.flux_linkage_wb),
         "power_factor": s.power_w / apparent if apparent > 0 else None,
         # Capacitance that resonates with the source at this frequency: in series
-        # (1 / (omega X)) and across the terminals (X / (omega |Z|^2)); None if not inductive.
-        "tuning_capacitance_series_f": 1 / (omega * x) if omega > 0 and x > 0 else None,
-        "tuning_capacitance_parallel_f": x / (omega * abs(z) ** 2) if omega > 0 and x > 0 else None,
+        # (1 / (omega X)) and across the terminals (X / (omega |Z|^2)); None if not inductive
+        # or ``tuning`` False (not a single coil, see single_coil).
+        "tuning_capacitance_series_f": (1 / (omega * x) if tuning and omega > 0 and x > 0
+                                        else None),
+        "tuning_capacitance_parallel_f": (x / (omega * abs(z) ** 2)
+                                          if tuning and omega > 0 and x > 0 else None),
     }
 
 
@@ -108,8 +111,16 @@ def derived_numbers(solution, regions, sources) -> dict:
                   for s in problem.sources if isinstance(s, Stranded))
     total = sum(t.loss_w for t in regions.values()) + winding
     return {"skin_depth_m": skin,
-            "heating_efficiency": work / total if total > 0 else None,
+            "heating_efficiency": (work / total if total > 0 and work > 0
+                                   and single_coil(problem) else None),
             "loss_in_unsourced_conductors_w": work}
+
+
+def single_coil(problem) -> bool:
+    """True for one driven source (a coil and its workpiece): heating efficiency and
+    tuning capacitors mean something only then. With several sources (three phases,
+    say) each one's impedance depends on the others' currents."""
+    return sum(isinstance(s, Stranded | Massive) for s in problem.sources) == 1
 
 
 def add_windings(solution, record) -> None:
@@ -152,7 +163,8 @@ def solution_record(solution, points=None, loops=None) -> dict:
     record = {
         "frequency_hz": solution.frequency_hz,
         "regions": {name: region_record(t) for name, t in regions.items()},
-        "sources": {name: source_record(s, solution.omega) for name, s in sources.items()},
+        "sources": {name: source_record(s, solution.omega, single_coil(solution.problem))
+                    for name, s in sources.items()},
         "loops": {lp["name"]: loop_record(loop_result(solution, lp)) for lp in loops or ()},
         "points": {},
         "totals": {

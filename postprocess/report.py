@@ -16,6 +16,7 @@ import math
 from pathlib import Path
 
 from whorl.postprocess.loops import EMF_SIGN
+from whorl.postprocess.summary import NEGATIVE_R
 from whorl.postprocess.tables import is_empty
 
 #: Cautions shown prominently near the top of every report.
@@ -148,21 +149,23 @@ def _regions(sol, axisym) -> str:
 
 
 def _sources(sol) -> str:
-    rows = []
+    rows, negative = [], False
     for name, s in sol.get("sources", {}).items():
         i, v = _complex(s.get("current_a")), _complex(s.get("voltage_v"))
         z = _complex(s.get("impedance_ohm"))
         p, q = s.get("power_w", 0.0), s.get("reactive_power_var", 0.0)
         apparent = math.hypot(p, q)
-        pf = "-" if apparent == 0 else (f"{p / apparent:.3f} "
-                                        + ("lagging" if q > 0 else "leading" if q < 0 else ""))
+        pf = "-" if apparent == 0 or p < 0 else (
+            f"{p / apparent:.3f} " + ("lagging" if q > 0 else "leading" if q < 0 else ""))
+        negative = negative or p < 0
         rows.append([_name(name), _num(abs(i), "A"), _phase(i), _num(abs(v), "V"), _phase(v),
                      _num(abs(z), "Ω"), _num(s.get("resistance_ohm"), "Ω"),
                      _num(s.get("inductance_h"), "H"), _num(p, "W"), _num(q, "var"),
                      f'<td class="num">{_e(pf.strip())}</td>'])
     return _table("Sources (terminal values)", (
         "source", "current (RMS)", "phase", "voltage (RMS)", "phase", "|Z|", "R", "L",
-        "power", "reactive power", "power factor"), rows)
+        "power", "reactive power", "power factor"), rows) + (
+        f"<p>{_e(NEGATIVE_R)}.</p>" if negative else "")
 
 
 def _loops(sol) -> str:

@@ -6,6 +6,10 @@ import math
 
 from whorl.postprocess.loops import EMF_SIGN
 
+NOISE = 1e-9  # region currents below this fraction of the largest are round-off: shown as 0
+NEGATIVE_R = ("R < 0: this source takes in power from the others through their mutual "
+              "inductance; only the sum over all sources is a loss, and it is positive")
+
 
 def _eng(value: float, unit: str) -> str:
     """Engineering notation: 1234.5, 'W' -> '1.23 kW'."""
@@ -81,6 +85,8 @@ def summary_text(results: dict) -> str:
         if eff is not None and sol["sources"]:
             lines.append(f"  heating efficiency (loss in conductors outside any source / all "
                          f"losses): {100 * eff:.1f} %")
+        # currents below NOISE x the largest are round-off (a plate at zero net current)
+        noise = NOISE * max((r["current_rms_a"] for r in sol["regions"].values()), default=0)
         rows = [(name, r) for name, r in sol["regions"].items()
                 if r["loss_w"] > 0 or r["current_rms_a"] > 0]
         wound = any("ampere_turns_a" in r for _, r in rows)
@@ -89,8 +95,9 @@ def summary_text(results: dict) -> str:
                          + (f" {'ampere-turns (RMS)':>19}" if wound else ""))
             for name, r in rows:
                 at = r.get("ampere_turns_a")
+                current = r["current_rms_a"] if r["current_rms_a"] > noise else 0.0
                 lines.append(f"  {name:<20} {_eng(r['loss_w'], 'W'):>12} "
-                             f"{_eng(r['current_rms_a'], 'A'):>16}"
+                             f"{_eng(current, 'A'):>16}"
                              + (f" {_eng(abs(complex(*at)), 'A'):>19}" if at else ""))
         for name, s in sol["sources"].items():
             z = complex(*s["impedance_ohm"])
@@ -101,8 +108,12 @@ def summary_text(results: dict) -> str:
                          f"L {_eng(s['inductance_h'], 'H')}, P {_eng(s['power_w'], 'W')}, "
                          f"Q {_eng(s['reactive_power_var'], 'var')}")
             extra = []
-            if s.get("power_factor") is not None:
-                extra.append(f"power factor {s['power_factor']:.3f}")
+            if s.get("power_factor") is not None and s["power_w"] >= 0:
+                q = s["reactive_power_var"]
+                extra.append(f"power factor {s['power_factor']:.3f}"
+                             + (" lagging" if q > 0 else " leading" if q < 0 else ""))
+            if s["power_w"] < 0:
+                lines.append(f"    {NEGATIVE_R}")
             if s.get("tuning_capacitance_parallel_f"):
                 extra.append(f"tuning capacitor {_eng(s['tuning_capacitance_parallel_f'], 'F')} "
                              "across the terminals or "

@@ -2,10 +2,13 @@
 
 from __future__ import annotations
 
+from whorl.cases import model
 from whorl.cases.cli.common import add_case_args
 from whorl.cases.loader import load_case
 from whorl.cases.parameters import parse_set_args
 from whorl.cases.read_sweep import sweep_size
+from whorl.meshes.build import covered_regions
+from whorl.meshes.errors import MeshError
 
 HELP = "validate a case file without solving; print what it contains"
 
@@ -16,7 +19,13 @@ def add_args(parser) -> None:
 
 def handle(args) -> int:
     case = load_case(args.case, parse_set_args(args.overrides))
-    for line in summary(case):
+    lines = summary(case)
+    try:
+        covered = covered_regions(model.sized_geometry(case))
+    except MeshError:
+        covered = []  # drawing problems are the mesher's to report, at run time
+    warnings = [f"WARNING: {text}" for text in model.overlap_warnings(case, covered)]
+    for line in lines[:-1] + warnings + lines[-1:]:
         print(line)
     return 0
 
@@ -59,8 +68,12 @@ def _source(s) -> str:
                  + (f" plus a {s.waveform.shape} waveform" if s.waveform is not None else ""))
     else:
         drive = f"{s.drive} {s.waveform.shape} waveform (transient)"
-    extra = (f", {s.turns:g} turns, {s.resistance:g} ohm" if s.kind == "stranded"
-             else f", {s.connection}")
+    if s.kind == "stranded":
+        ohm = (f"resistance from its material (fill factor {s.fill_factor:g})"
+               if s.fill_factor is not None else f"{s.resistance:g} ohm")
+        extra = f", {s.turns:g} turns, {ohm}"
+    else:
+        extra = f", {s.connection}"
     back = f", return {', '.join(_compact(s.return_regions))}" if s.return_regions else ""
     return f"{s.kind}{extra}, {drive}, regions {regions}{back}"
 

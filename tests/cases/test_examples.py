@@ -50,7 +50,7 @@ def test_shaft_end_heater(tmp_path, capsys):
 
 
 def test_busbar_cover_plate(tmp_path, capsys):
-    results, folder, _ = run("busbar-cover-plate", tmp_path, capsys)
+    results, folder, out = run("busbar-cover-plate", tmp_path, capsys)
     sol = results["solutions"][0]
     assert results["case"]["depth_m"] == 1.0
     # Phase currents 2.5 kA at 0, -120, +120 degrees.
@@ -67,6 +67,16 @@ def test_busbar_cover_plate(tmp_path, capsys):
     # The three terminal powers add up to all losses (Poynting), even with one negative.
     powers = [s["power_w"] for s in sol["sources"].values()]
     assert sum(powers) == pytest.approx(sol["totals"]["loss_w"], rel=1e-6)
+    # Numbers that fit the case: three phases are no coil with a workpiece, so no heating
+    # efficiency and no tuning capacitors; the cover's round-off current prints as 0; a
+    # negative phase resistance gets its one-line explanation and no power factor.
+    assert sol["derived"]["heating_efficiency"] is None
+    assert all(s["tuning_capacitance_series_f"] is None for s in sol["sources"].values())
+    assert "heating efficiency" not in out and "tuning capacitor" not in out
+    cover_line = next(line for line in out.splitlines() if line.strip().startswith("cover "))
+    assert cover_line.split()[-2:] == ["0", "A"]
+    assert min(powers) < 0 and out.count("R < 0: this source takes in power") == 1
+    assert "-0." not in "".join(line for line in out.splitlines() if "power factor" in line)
 
 
 def test_tube_forming_pulse(tmp_path, capsys):
