@@ -49,6 +49,9 @@ from whorl.cases.units import UREG, Quantity, describe, is_unit
 MAX_LENGTH = 1000
 """Longest expression accepted, in characters."""
 
+MAX_EXPONENT = 12
+"""Largest power of a unit (``mm**3``), and of a quantity with a unit, in size."""
+
 CONSTANTS = {"pi": math.pi}
 FUNCTIONS = ("sqrt", "exp", "log", "sin", "cos", "tan")
 RESERVED = frozenset(FUNCTIONS) | frozenset(CONSTANTS)
@@ -149,6 +152,7 @@ def prepare(text: str, key: str, params=()) -> tuple[str, dict]:
     toks = _tokens(text, key)
     starts = _offsets(text)
     pieces, literals, last, i = [], {}, 0, 0
+    shown = {}
     while i < len(toks):
         tok = toks[i]
         if tok.type == tokenize.NAME and tok.string.startswith("_"):
@@ -161,19 +165,84 @@ def prepare(text: str, key: str, params=()) -> tuple[str, dict]:
                 b = starts[toks[end - 1].end[0] - 1] + toks[end - 1].end[1]
                 unit_text = text[u0:b]
                 name = _PLACEHOLDER.format(len(literals))
+                units = units_of(toks[i + 1:end], unit_text, key)
                 try:
-                    units = UREG.parse_units("percent" if unit_text == "%" else unit_text)
-                except (pint.errors.PintError, ValueError, TypeError, AttributeError,
-                        SyntaxError) as exc:
-                    raise _error(key, f"cannot read the unit {unit_text!r}: {exc}") from None
-                literals[name] = Quantity(_number(tok.string, key), units)
+                    literals[name] = Quantity(_number(tok.string, key), units)
+                except (pint.errors.PintError, ValueError, TypeError, ZeroDivisionError,
+                        OverflowError) as exc:
+                    raise _error(key, f"cannot read {text[a:b]!r}: {exc}") from None
+                shown[name] = text[a:b]
                 pieces.append(text[last:a])
                 pieces.append(name)
                 last, i = b, end
                 continue
         i += 1
     pieces.append(text[last:])
+    _SHOWN.clear()
+    _SHOWN.update(shown)
     return "".join(pieces), literals
+
+
+_SHOWN: dict = {}  # placeholder -> the literal as written, for messages about the last parse
+
+
+def units_of(tokens, unit_text: str, key: str):
+    """The pint unit of a unit run (``mm``, ``ohm*m``, ``W/m**2``, ``%``), built here.
+
+    The text is never handed to pint's own parser: each name is looked up on its
+    own, and products, quotients and integer powers are formed here, with
+    exponents limited to :data:`MAX_EXPONENT` in size and one power per name.
+    """
+    if unit_text == "%":
+        return UREG.percent
+
+    def bad(why: str) -> CaseError:
+        return _error(key, f"cannot read the unit {unit_text!r}: {why}")
+
+    factors = []  # [name, +1 or -1, exponent]
+    sign, i = 1, 0
+    while i < len(tokens):
+        tok = tokens[i]
+        if tok.type == tokenize.NAME:
+            factors.append([tok.string, sign, None])
+            i += 1
+        elif tok.string in ("*", "/"):
+            sign = 1 if tok.string == "*" else -1
+            i += 1
+        elif tok.string == "**" and factors:
+            if factors[-1][2] is not None:
+                raise bad("one power per unit name (write mm**3, not mm**3**2)")
+            negative = i + 1 < len(tokens) and tokens[i + 1].string == "-"
+            j = i + 2 if negative else i + 1
+            exponent = _number(tokens[j].string, key) * (-1 if negative else 1)
+            if exponent != int(exponent) or exponent == 0 or abs(exponent) > MAX_EXPONENT:
+                raise bad(f"a unit's power must be a whole number from -{MAX_EXPONENT} to "
+                          f"{MAX_EXPONENT} other than 0")
+            factors[-1][2] = int(exponent)
+            i = j + 1
+        else:
+            raise bad("unexpected text")
+    try:
+        units = UREG.dimensionless
+        for name, sign, exponent in factors:
+            unit = UREG.parse_units(name) ** (sign * (1 if exponent is None else exponent))
+            units = units * unit
+    except (pint.errors.PintError, ValueError, TypeError, AttributeError, KeyError,
+            ZeroDivisionError, OverflowError, SyntaxError) as exc:
+        raise bad(str(exc) or type(exc).__name__) from None
+    return units
+
+
+def read_unit(text: str, key: str):
+    """A unit written on its own (``"mm"``, ``"in"``, ``"W/m**2"``) as a pint unit, read
+    by :func:`units_of`; anything else is a :class:`CaseError`."""
+    if not isinstance(text, str) or not text.strip() or len(text) > MAX_LENGTH:
+        raise _error(key, f"expected a unit name such as 'mm', got {text!r}")
+    toks = [t for t in _tokens(text.strip(), key)
+            if t.type not in (tokenize.NEWLINE, tokenize.NL, tokenize.ENDMARKER)]
+    if not toks or _unit_run(toks, 0, ()) != len(toks):
+        raise _error(key, f"{text!r} is not a unit (try 'mm', 'cm', 'm', 'in')")
+    return units_of(toks, text.strip(), key)
 
 
 def parse(text: str, key: str, params=()) -> tuple[ast.Expression, dict]:
@@ -211,7 +280,7 @@ def _check_node(node, key: str) -> None:
     if isinstance(node, ast.Call):
         func = node.func.id if isinstance(node.func, ast.Name) else None
         if func not in FUNCTIONS:
-            shown = f"'{func}'" if func else "this"
+            shown = f"'{_SHOWN.get(func, func)}'" if func else "this"
             raise _error(key, f"calling {shown} is not allowed: only "
                               f"{', '.join(FUNCTIONS)} may be called")
         if node.keywords or len(node.args) != 1:
@@ -337,6 +406,11 @@ class _Evaluator:
         if isinstance(op, ast.Div):
             return a / b
         exponent = self.plain(b, "an exponent")
+        if isinstance(a, Quantity) and not a.dimensionless:
+            if abs(exponent) > MAX_EXPONENT:
+                raise _error(self.key, f"a quantity with a unit may be raised to powers up to "
+                                       f"{MAX_EXPONENT} in size, not {exponent:g}")
+            return a ** exponent
         if isinstance(a, Quantity):
             return a ** exponent
         return math.pow(a, exponent)

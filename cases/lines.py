@@ -16,6 +16,9 @@ from whorl.cases.errors import CaseError
 _HEADER = re.compile(r"^\s*(\[\[?)\s*([^\]#]+?)\s*(\]\]?)\s*(#.*)?$")
 
 
+_KEY = re.compile(r"(?:^|[\s{,])[\"']?([^\s{,=\"']+)[\"']?\s*=")
+
+
 def _normal(name: str) -> str:
     return ".".join(part.strip().strip("\"'") for part in name.split("."))
 
@@ -52,7 +55,8 @@ class LineIndex:
                                        strict=True):
             first = start + 1 if block != ("", 0) else start
             self.blocks.setdefault(block, (first, nxt[1]))
-            self.headers = {b: s for b, s in starts}
+        self.headers = {b: s for b, s in starts}
+        self._keys: dict[tuple[str, int], dict[str, int]] = {}
 
     def check_duplicates(self) -> None:
         """A table header written twice is an error naming the table and both lines."""
@@ -66,13 +70,14 @@ class LineIndex:
         span = self.blocks.get(block)
         if span is None:
             return None
-        start, end = span
-        for key in keys:
-            if not key:
-                continue
-            pattern = re.compile(r"(^|[\s{,])[\"']?" + re.escape(key) + r"[\"']?\s*=")
-            for i in range(start, end):
+        found = self._keys.get(block)
+        if found is None:  # every key of the block once: finding is then a look-up
+            found = self._keys[block] = {}
+            for i in range(*span):
                 text = self.lines[i].split("#", 1)[0]
-                if pattern.search(text):
-                    return i + 1
+                for m in _KEY.finditer(text):
+                    found.setdefault(m.group(1), i + 1)
+        for key in keys:
+            if key and key in found:
+                return found[key]
         return self.headers[block] + 1 if block != ("", 0) else None

@@ -21,6 +21,7 @@ import tomllib
 from pathlib import Path
 
 from whorl.cases.errors import CaseError
+from whorl.cases.limits import MAX_NESTING, MAX_SWEEP_POINTS, check_shapes, nesting_depth
 from whorl.cases.lines import LineIndex
 from whorl.cases.parameters import resolve, si_values
 from whorl.cases.read_domain import check_regions_inside, read_domain
@@ -30,7 +31,7 @@ from whorl.cases.read_outputs import read_lines, read_loops, read_output, read_p
 from whorl.cases.read_regions import read_regions
 from whorl.cases.read_sources import read_shorted, read_sources
 from whorl.cases.read_study import read_study
-from whorl.cases.read_sweep import read_sweep
+from whorl.cases.read_sweep import read_sweep, sweep_size
 from whorl.cases.reader import Context, Table
 from whorl.cases.spec import Case
 from whorl.meshes.geometry import Geometry
@@ -42,7 +43,7 @@ TOP_KEYS = ("format", "case", "model", "mesh", "parameters", "material", "region
             "source", "shorted", "study", "loop", "line", "point", "output", "sweep")
 
 
-def load_case(path, overrides=None) -> Case:
+def load_case(path, overrides=None, max_points: int | None = MAX_SWEEP_POINTS) -> Case:
     """Read, check and resolve the case file at ``path``.
 
     Parameters
@@ -50,6 +51,9 @@ def load_case(path, overrides=None) -> Case:
     path : str or Path
     overrides : dict of str -> str or number, optional
         Parameter values replacing the file's (``--set NAME=VALUE``).
+    max_points : int, optional
+        Refuse a ``[sweep]`` of more points (checked before any is built; 0 or
+        None: no limit).
 
     Raises
     ------
@@ -63,10 +67,11 @@ def load_case(path, overrides=None) -> Case:
         raise CaseError("file", f"no case file at {path}") from None
     except (OSError, UnicodeDecodeError) as exc:
         raise CaseError("file", f"cannot read {path}: {exc}") from None
-    return parse_case(text, path, overrides)
+    return parse_case(text, path, overrides, max_points)
 
 
-def parse_case(text: str, path=None, overrides=None) -> Case:
+def parse_case(text: str, path=None, overrides=None,
+               max_points: int | None = MAX_SWEEP_POINTS) -> Case:
     """Check and resolve case-file text (``path`` names it and anchors ``output.folder``).
 
     Every value of a ``[sweep]`` is also tried on its own, so a sweep that
@@ -75,6 +80,11 @@ def parse_case(text: str, path=None, overrides=None) -> Case:
     overrides = dict(overrides or {})
     case = _build(text, path, overrides)
     if case.sweep is not None:
+        count = sweep_size(case.sweep)
+        if max_points and count > max_points:
+            raise CaseError("sweep", f"the sweep has {count} points, more than the maximum "
+                                     f"of {max_points}; make it smaller or raise "
+                                     "--max-points")
         index = LineIndex(text)
         for name, values in case.sweep.axes.items():
             for i, value in enumerate(values, start=1):
@@ -94,11 +104,16 @@ def build_case(text: str, path=None, overrides=None) -> Case:
 
 def _toml(text: str) -> dict:
     try:
-        return tomllib.loads(text)
+        doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         m = re.search(r"line (\d+)", str(exc))
         raise CaseError("file", f"not valid TOML: {exc}", int(m.group(1)) if m else None) \
             from None
+    except (RecursionError, MemoryError):
+        doc = None
+    if doc is None or nesting_depth(doc) > MAX_NESTING:
+        raise CaseError("file", f"arrays or tables are nested more than {MAX_NESTING} deep")
+    return doc
 
 
 def _format(doc: dict, index: LineIndex) -> None:
@@ -183,6 +198,7 @@ def _build(text: str, path, overrides: dict) -> Case:
 
     geometry = Geometry(tuple(e.spec for e in entries), domain.spec, model.axisymmetric,
                         model.unit_m, options)
+    check_shapes(doc, geometry)
     document = dict(doc)
     document["_resolved"] = {"overrides": dict(overrides), "waveforms": waveforms}
     return Case(

@@ -15,6 +15,7 @@ the file does not define is an error.
 from __future__ import annotations
 
 import keyword
+import unicodedata
 from collections.abc import Mapping
 
 from whorl.cases.errors import CaseError
@@ -24,6 +25,10 @@ from whorl.cases.units import Quantity, to_si
 
 def check_name(name: str, key: str) -> None:
     """A parameter name must be an identifier that is not a keyword, function or pi."""
+    folded = unicodedata.normalize("NFKC", name)
+    if folded != name:
+        raise CaseError(key, f"{name!r} is not in normal form: Python reads it as "
+                             f"{folded!r}, so it could not be told apart; write {folded!r}")
     if not name.isidentifier() or keyword.iskeyword(name) or name.startswith("_"):
         raise CaseError(key, f"{name!r} is not a valid parameter name: use letters, digits "
                              "and _, starting with a letter")

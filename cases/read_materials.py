@@ -6,6 +6,13 @@ from whorl.cases.errors import CaseError
 from whorl.cases.reader import Context, Table
 from whorl.solver.materials import BUILTIN, Material
 
+#: Largest conductivity accepted, S/m: above any metal (silver 6.3e7 S/m at 20 degC,
+#: CRC Handbook of Chemistry and Physics), with room for cryogenic pure metals.
+MAX_CONDUCTIVITY = 1e10
+#: Relative permeability range accepted: diamagnets lie just below 1; the highest
+#: permeability alloys reach about 1e6 (common practice; value from memory).
+MIN_PERMEABILITY, MAX_PERMEABILITY = 1e-3, 1e7
+
 
 def read_materials(ctx: Context, raw) -> dict[str, Material]:
     """Materials defined in the case file, by name.
@@ -27,10 +34,21 @@ def read_materials(ctx: Context, raw) -> dict[str, Material]:
         if table.has("conductivity") and table.has("resistivity"):
             raise table.error("resistivity", "give conductivity or resistivity, not both")
         if table.has("resistivity"):
+            key = "resistivity"
             conductivity = 1.0 / table.positive("resistivity", "resistivity")
         else:
+            key = "conductivity"
             conductivity = table.positive("conductivity", "conductivity", 0.0, zero=True)
+        if not conductivity <= MAX_CONDUCTIVITY:  # also catches inf and nan
+            raise table.error(key, f"gives a conductivity of {conductivity:.3g} S/m, beyond "
+                                   f"the physical range (at most {MAX_CONDUCTIVITY:g} S/m; "
+                                   "silver, the best conductor at room temperature, has "
+                                   "6.3e7 S/m)")
         mu_r = table.positive("relative_permeability", "dimensionless", 1.0)
+        if not MIN_PERMEABILITY <= mu_r <= MAX_PERMEABILITY:
+            raise table.error("relative_permeability", f"{mu_r:g} is beyond the physical "
+                                                       f"range ({MIN_PERMEABILITY:g} to "
+                                                       f"{MAX_PERMEABILITY:g})")
         source = table.string("source", "defined in the case file")
         out[name] = Material(name, conductivity, mu_r, source)
     return out

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 from pathlib import Path
 
+from whorl.cases.limits import MAX_SAMPLES, check_count
 from whorl.cases.names import checked_name
 from whorl.cases.read_domain import contains
 from whorl.cases.reader import Context, Table, array_of_tables
@@ -67,6 +68,9 @@ def read_lines(ctx: Context, document: dict, domain) -> tuple[LineSpec, ...]:
             _inside(ctx, table, key, xy, domain)
         if start == end:
             raise table.error("to", "from and to are the same point")
+        if table.has("samples"):
+            check_count(table, "samples", table.value("samples", "dimensionless"),
+                        MAX_SAMPLES, "samples")
         lines.append(LineSpec(name, start, end, table.integer("samples", 101, minimum=2)))
     return tuple(lines)
 

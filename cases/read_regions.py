@@ -5,6 +5,7 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from whorl.cases.errors import CaseError
+from whorl.cases.limits import MAX_POLYGON_POINTS, MAX_REPEAT, check_count
 from whorl.cases.names import MAX_NAME, valid_name
 from whorl.cases.reader import Context, Table, array_of_tables
 from whorl.meshes.geometry import RegionSpec
@@ -88,8 +89,12 @@ def _extent(shape) -> float:
 def _repeat(table: Table) -> tuple[int, tuple[float, float]]:
     rep = table.table("repeat")
     rep.allow({"count", "step"}, required=("count", "step"))
+    check_count(rep, "count", rep.value("count", "dimensionless"), MAX_REPEAT, "copies")
     count = rep.integer("count", minimum=1)
-    return count, rep.point("step")
+    step = rep.point("step")
+    if count > 1 and step[0] == 0 and step[1] == 0:
+        raise rep.error("step", "the step is zero: every copy would lie on the first")
+    return count, step
 
 
 def _rectangle(table: Table) -> Rectangle:
@@ -119,6 +124,7 @@ def _polygon(table: Table) -> Polygon:
     raw = table.raw("points")
     if not isinstance(raw, list) or len(raw) < 3:
         raise table.error("points", "a polygon needs a list of at least 3 points [[x, y], ...]")
+    check_count(table, "points", len(raw), MAX_POLYGON_POINTS, "points")
     points = []
     for i, p in enumerate(raw, start=1):
         if not isinstance(p, list) or len(p) != 2:

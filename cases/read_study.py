@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+from whorl.cases.limits import MAX_STEPS, check_count
 from whorl.cases.reader import Table
 from whorl.cases.spec import StudySpec
 from whorl.cases.values import value_list
@@ -54,6 +55,7 @@ def read_study(table: Table) -> StudySpec:
     if step > end:
         raise table.error("step", f"the time step ({step:g} s) is longer than the end "
                                   f"time ({end:g} s)")
+    check_count(table, "step", end / step, MAX_STEPS, "time steps (end / step)")
     scheme = table.string("scheme", "bdf2", SCHEMES)
     save_every = table.integer("save_every", 10, minimum=1)
     return StudySpec("transient", (), end, step, scheme, save_every)

@@ -15,9 +15,9 @@ from pathlib import Path
 
 from whorl import __version__
 from whorl.cases import model
+from whorl.cases.meshing import DEFAULT_MESH_TIME_LIMIT, mesh_with_limit
 from whorl.cases.output import staged_folder
 from whorl.cases.run_transient import series_tables, solve_transient
-from whorl.meshes.build import build_mesh
 from whorl.postprocess.balance import TOLERANCE as BALANCE_TOLERANCE
 from whorl.postprocess.plots import (
     PLOTS,
@@ -86,8 +86,11 @@ def model_warnings(case, mesh, records) -> list[str]:
     return out
 
 
-def solve_case(case, progress=None, mesh=None, folder: Path | None = None):
+def solve_case(case, progress=None, mesh=None, folder: Path | None = None,
+               mesh_time_limit: float | None = DEFAULT_MESH_TIME_LIMIT):
     """Mesh (unless ``mesh`` is given) and solve ``case``; returns (results, solutions, mesh).
+
+    Meshing is stopped after ``mesh_time_limit`` seconds (see :mod:`.meshing`).
 
     A transient study returns no solutions but a ``series`` block in the results;
     its field snapshots are written into ``folder`` (when given) as it marches.
@@ -97,7 +100,7 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None):
     t0 = time.perf_counter()
     if mesh is None:
         say("meshing")
-        mesh = build_mesh(model.sized_geometry(case), progress=say)
+        mesh = mesh_with_limit(model.sized_geometry(case), say, mesh_time_limit)
     timing["mesh"] = time.perf_counter() - t0
     problem = model.problem(case, mesh)
     loops = [loop_description(loop, case.unit_m) for loop in case.loops]
@@ -244,7 +247,8 @@ def transient_tables(series: dict) -> dict:
                                  bal["relative_mismatch"]]])}
 
 
-def run_case(case, root: Path, progress=None, key: str = "output.folder") -> RunOutcome:
+def run_case(case, root: Path, progress=None, key: str = "output.folder",
+             mesh_time_limit: float | None = DEFAULT_MESH_TIME_LIMIT) -> RunOutcome:
     """Solve ``case`` and write ``root/CASE_NAME/``; returns what was written.
 
     The folder is checked before anything is solved: an existing folder is
@@ -267,7 +271,8 @@ def run_case(case, root: Path, progress=None, key: str = "output.folder") -> Run
                 if progress:
                     progress(message)
 
-            results, solutions, _ = solve_case(case, say, folder=tmp)
+            results, solutions, _ = solve_case(case, say, folder=tmp,
+                                               mesh_time_limit=mesh_time_limit)
             files = write_results(case, results, solutions, tmp)
             log.info("done in %.2f s", results["timing_s"]["total"])
         finally:

@@ -77,23 +77,30 @@ def parse_quantity(text: str, key: str, kind: str, unit: str | None = None) -> f
     float
         The value in ``unit``.
     """
-    try:
-        value = Quantity(text.strip())
-    except (pint.errors.PintError, ValueError, TypeError, AttributeError, SyntaxError) as exc:
-        raise CaseError(key, f"cannot read {text!r} as a quantity ({exc})") from None
-    return to_unit(value, kind, key, unit)
+    from whorl.cases.expressions import evaluate  # expressions builds on this module
+
+    return to_unit(evaluate(text, key, {}), kind, key, unit)
 
 
 def length_unit_metres(text: str, key: str = "model.length_unit") -> float:
     """Metres per unit of a length unit name such as ``"mm"``; an error if not a length."""
+    from whorl.cases.expressions import read_unit  # expressions builds on this module
+
     try:
-        units = UREG.parse_units(text)
-    except (pint.errors.PintError, ValueError, TypeError, AttributeError, SyntaxError):
+        units = read_unit(text, key)
+    except CaseError:
         raise CaseError(key, f"unknown length unit {text!r} (try 'mm', 'cm', 'm', 'in')") from None
     q = Quantity(1.0, units)
     if not q.check("[length]"):
         raise CaseError(key, f"{text!r} is not a unit of length")
-    return float(q.to("m").magnitude)
+    try:
+        metres = float(q.to("m").magnitude)
+    except (pint.errors.PintError, TypeError, ZeroDivisionError, OverflowError) as exc:
+        raise CaseError(key, f"cannot use {text!r} as the length unit: {exc}") from None
+    if not (math.isfinite(metres) and 1e-12 <= metres <= 1e6):
+        raise CaseError(key, f"{text!r} is {metres:g} m: a length unit from 1 pm to 1000 km "
+                             "is expected")
+    return metres
 
 
 def to_unit(value, kind: str, key: str, unit: str | None = None) -> float:

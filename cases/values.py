@@ -14,6 +14,7 @@ import math
 
 from whorl.cases.errors import CaseError
 from whorl.cases.expressions import evaluate
+from whorl.cases.limits import MAX_VALUES, check_count
 from whorl.cases.reader import Table
 from whorl.cases.units import Quantity, quantity_text
 
@@ -31,6 +32,7 @@ def value_list(table: Table, name: str) -> list[tuple[str, object]]:
     if isinstance(raw, list):
         if not raw:
             raise table.error(name, "the list is empty")
+        check_count(table, name, len(raw), MAX_VALUES, "values")
         for i, item in enumerate(raw, start=1):
             if isinstance(item, bool) or not isinstance(item, int | float | str):
                 raise table.error(f"{name}[{i}]", f"expected a number or a quantity, "
@@ -41,6 +43,7 @@ def value_list(table: Table, name: str) -> list[tuple[str, object]]:
                                 "{ from, to, count, scale }")
     rng = table.table(name)
     rng.allow(RANGE_KEYS, required=("from", "to", "count"))
+    check_count(rng, "count", rng.value("count", "dimensionless"), MAX_VALUES, "values")
     count = rng.integer("count", minimum=1)
     scale = rng.string("scale", "linear", ("linear", "log"))
     start, stop = _ends(rng)
@@ -66,9 +69,17 @@ def _ends(rng: Table):
 
 def _evaluate(rng: Table, key: str):
     try:
-        return evaluate(rng.raw(key), rng.key(key), rng.ctx.params)
+        value = evaluate(rng.raw(key), rng.key(key), rng.ctx.params)
     except CaseError as exc:
         raise rng.relined(exc, key) from None
+    magnitude = value.magnitude if isinstance(value, Quantity) else value
+    try:
+        finite = math.isfinite(float(magnitude))
+    except (TypeError, ValueError, OverflowError):
+        finite = False
+    if not finite:
+        raise rng.error(key, f"the range end is not a finite number ({magnitude})")
+    return value
 
 
 def spaced(start, stop, count: int, scale: str, table: Table) -> list:

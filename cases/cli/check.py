@@ -3,7 +3,8 @@
 from __future__ import annotations
 
 from whorl.cases import model
-from whorl.cases.cli.common import add_case_args
+from whorl.cases.cli.common import add_case_args, add_limit_args
+from whorl.cases.limits import check_mesh_estimate
 from whorl.cases.loader import load_case
 from whorl.cases.parameters import parse_set_args
 from whorl.cases.read_sweep import sweep_size
@@ -15,11 +16,15 @@ HELP = "validate a case file without solving; print what it contains"
 
 def add_args(parser) -> None:
     add_case_args(parser, out=False, quiet=None)
+    add_limit_args(parser, mesh_time=False)
 
 
 def handle(args) -> int:
     case = load_case(args.case, parse_set_args(args.overrides))
+    elements = check_mesh_estimate(case, args.max_elements)
     lines = summary(case)
+    lines.insert(-1, f"  mesh       about {elements:,.0f} elements estimated (limit "
+                     f"{args.max_elements:,})")
     try:
         covered = covered_regions(model.sized_geometry(case))
     except MeshError:

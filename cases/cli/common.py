@@ -2,6 +2,44 @@
 
 from __future__ import annotations
 
+import argparse
+import math
+
+from whorl.cases.meshing import DEFAULT_MESH_TIME_LIMIT
+from whorl.meshes.estimate import DEFAULT_MAX_ELEMENTS
+
+
+def _count(text: str) -> int:
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected a whole number, got {text!r}") from None
+    if not math.isfinite(value) or value < 1 or value != int(value):
+        raise argparse.ArgumentTypeError(f"expected a whole number >= 1, got {text!r}")
+    return int(value)
+
+
+def _seconds(text: str) -> float:
+    try:
+        value = float(text)
+    except ValueError:
+        raise argparse.ArgumentTypeError(f"expected seconds, got {text!r}") from None
+    if not (math.isfinite(value) and value > 0):
+        raise argparse.ArgumentTypeError(f"expected a positive number of seconds, got {text!r}")
+    return value
+
+
+def add_limit_args(parser, mesh_time: bool = True) -> None:
+    """``--max-elements`` and (optionally) ``--mesh-time-limit``."""
+    parser.add_argument("--max-elements", type=_count, default=DEFAULT_MAX_ELEMENTS,
+                        metavar="N", help="refuse a case whose mesh is estimated to need more "
+                                          f"elements (default {DEFAULT_MAX_ELEMENTS:,})")
+    if mesh_time:
+        parser.add_argument("--mesh-time-limit", type=_seconds,
+                            default=DEFAULT_MESH_TIME_LIMIT, metavar="SECONDS",
+                            help="stop meshing that takes longer (default "
+                                 f"{DEFAULT_MESH_TIME_LIMIT:g} s)")
+
 
 def add_case_args(parser, case_help: str = "the case file (TOML)", out: bool = True,
                   quiet: str | None = "no progress messages") -> None:

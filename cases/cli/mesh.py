@@ -3,12 +3,13 @@
 from __future__ import annotations
 
 from whorl.cases import model
-from whorl.cases.cli.common import add_case_args
+from whorl.cases.cli.common import add_case_args, add_limit_args
+from whorl.cases.limits import check_mesh_estimate
 from whorl.cases.loader import load_case
+from whorl.cases.meshing import mesh_with_limit
 from whorl.cases.output import output_key, output_root, staged_folder
 from whorl.cases.parameters import parse_set_args
 from whorl.cases.progress import StageReporter
-from whorl.meshes.build import build_mesh
 from whorl.meshes.msh import write_msh
 from whorl.postprocess.meshplot import plot_mesh
 
@@ -17,15 +18,18 @@ HELP = "mesh a case only: mesh.msh (gmsh 4.1 binary, case length unit), mesh.png
 
 def add_args(parser) -> None:
     add_case_args(parser)
+    add_limit_args(parser)
 
 
 def handle(args) -> int:
     case = load_case(args.case, parse_set_args(args.overrides))
+    geometry = model.sized_geometry(case)
+    check_mesh_estimate(case, args.max_elements, geometry)
     root = output_root(case, args.out)
     final = root / case.name
     with staged_folder(final, output_key(args.out), "mesh") as tmp:
-        tagged = build_mesh(model.sized_geometry(case),
-                            progress=StageReporter(quiet=args.quiet))
+        tagged = mesh_with_limit(geometry, StageReporter(quiet=args.quiet),
+                                 args.mesh_time_limit)
         write_msh(tagged, tmp / "mesh.msh")
         plot_mesh(tagged, tmp / "mesh.png", title=case.title or case.name)
     info = tagged.info

@@ -2,8 +2,9 @@
 
 from __future__ import annotations
 
-from whorl.cases.cli.common import add_case_args
+from whorl.cases.cli.common import add_case_args, add_limit_args
 from whorl.cases.errors import CaseError
+from whorl.cases.limits import check_mesh_estimate
 from whorl.cases.loader import load_case
 from whorl.cases.output import output_key, output_root
 from whorl.cases.parameters import parse_set_args
@@ -17,6 +18,7 @@ HELP = "mesh, solve and write results (results.json, tables, log) for a case fil
 
 def add_args(parser) -> None:
     add_case_args(parser)
+    add_limit_args(parser)
     parser.add_argument("--solver", metavar="NAME",
                         help="linear solver backend (overrides [model] solver): "
                              f"auto, {', '.join(linalg.BACKENDS)}")
@@ -29,9 +31,10 @@ def handle(args) -> int:
             raise CaseError("--solver", f"unknown linear solver {args.solver!r}; known: "
                                         f"auto, {', '.join(linalg.BACKENDS)}")
         case.solver = args.solver
+    check_mesh_estimate(case, args.max_elements)
     root = output_root(case, args.out)
     outcome = run_case(case, root, StageReporter(quiet=args.quiet),
-                       output_key(args.out))
+                       output_key(args.out), args.mesh_time_limit)
     print(summary_text(outcome.results))
     print()
     print(f"results in {outcome.folder}")

@@ -6,7 +6,7 @@ import argparse
 import os
 import sys
 
-from whorl.cases.cli.common import add_case_args
+from whorl.cases.cli.common import add_case_args, add_limit_args
 from whorl.cases.parameters import parse_set_args
 from whorl.cases.run import CAUTION
 from whorl.cases.sweep import DEFAULT_MAX_POINTS, run_sweep, sweep_status
@@ -46,6 +46,7 @@ def add_args(parser) -> None:
     parser.formatter_class = argparse.RawDescriptionHelpFormatter
     parser.epilog = EPILOG
     add_case_args(parser, "the case file (TOML) with a [sweep] table", quiet="no progress bar")
+    add_limit_args(parser, mesh_time=False)
     parser.add_argument("--workers", type=_positive_int, metavar="N",
                         help=f"local worker processes (default: all cores, {os.cpu_count()})")
     parser.add_argument("--scheduler", metavar="ADDRESS",
@@ -123,7 +124,8 @@ def handle(args) -> int:
         outcome = run_sweep(args.case, overrides, out=args.out, workers=args.workers,
                             scheduler=args.scheduler, point_timeout=args.point_timeout,
                             retry_failed=args.retry_failed, restart=args.restart,
-                            max_points=args.max_points, progress=bar)
+                            max_points=args.max_points, progress=bar,
+                            max_elements=args.max_elements)
     finally:
         bar.close()
     c = outcome.counts

@@ -27,6 +27,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 
 from whorl.cases.errors import CaseError
+from whorl.cases.limits import check_mesh_estimate
 from whorl.cases.loader import load_case
 from whorl.cases.output import (
     MARKER,
@@ -78,7 +79,7 @@ def sweep_folder(case, out=None) -> Path:
 def load_sweep(path, overrides=None, max_points: int = DEFAULT_MAX_POINTS):
     """The case and its points (list of override dicts), checked."""
     overrides = dict(overrides or {})
-    case = load_case(path, overrides)
+    case = load_case(path, overrides, max_points)
     if case.sweep is None:
         raise CaseError("sweep", "the case has no [sweep] table: add one, e.g. "
                                  "[sweep] freq = [\"1 kHz\", \"3 kHz\"]")
@@ -94,7 +95,7 @@ def load_sweep(path, overrides=None, max_points: int = DEFAULT_MAX_POINTS):
 def run_sweep(path, overrides=None, out=None, workers: int | None = None, scheduler=None,
               point_timeout: float | None = None, retry_failed: bool = False,
               restart: bool = False, max_points: int = DEFAULT_MAX_POINTS, progress=None,
-              runner=None) -> SweepOutcome:
+              runner=None, max_elements: int | None = None) -> SweepOutcome:
     """Run (or resume) the sweep of the case file at ``path``.
 
     Parameters
@@ -120,6 +121,10 @@ def run_sweep(path, overrides=None, out=None, workers: int | None = None, schedu
         ``failed``.
     runner : object, optional
         A ready runner (``free``, ``busy``, ``submit``, ``wait``, ``close``).
+    max_elements : int, optional
+        A group of points whose mesh is estimated above this (default
+        :data:`~whorl.meshes.estimate.DEFAULT_MAX_ELEMENTS`) fails as bad input
+        without meshing.
 
     Returns
     -------
@@ -137,7 +142,7 @@ def run_sweep(path, overrides=None, out=None, workers: int | None = None, schedu
         try:
             _check_fingerprint(store, case, overrides)
             return _run(store, case, specs, folder, overrides, workers, scheduler,
-                        point_timeout, retry_failed, progress, runner)
+                        point_timeout, retry_failed, progress, runner, max_elements)
         finally:
             store.close()
 
@@ -160,7 +165,7 @@ def _check_fingerprint(store, case, overrides) -> None:
 
 
 def _run(store, case, specs, folder, overrides, workers, scheduler, point_timeout,
-         retry_failed, progress, runner) -> SweepOutcome:
+         retry_failed, progress, runner, max_elements=None) -> SweepOutcome:
     t0 = time.perf_counter()
     numbers = store.sync_points(specs)
     store.requeue(retry_failed)
@@ -184,6 +189,12 @@ def _run(store, case, specs, folder, overrides, workers, scheduler, point_timeou
             store.set_params(n, cases[n].parameters, group.mesh_key)
         todo = [n for n in group.numbers if status[n] == "pending"]
         if todo:
+            try:
+                check_mesh_estimate(group.case, max_elements, group.geometry)
+            except CaseError as exc:
+                for n in todo:
+                    store.mark_failed(n, f"bad input: {exc}")
+                continue
             tasks.append((group, todo))
     t1 = time.perf_counter()
     report = run_tasks(tasks, cases, text, store, folder, workers, scheduler, point_timeout,

@@ -28,9 +28,10 @@ from dataclasses import dataclass, field, replace
 
 from whorl.cases import loader
 from whorl.cases.errors import CaseError
+from whorl.cases.limits import MAX_SWEEP_POINTS
 from whorl.cases.model import sized_geometry
 
-DEFAULT_MAX_POINTS = 10_000
+DEFAULT_MAX_POINTS = MAX_SWEEP_POINTS
 MESH_CACHE_VERSION = 1
 
 
