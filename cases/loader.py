@@ -75,10 +75,13 @@ def parse_case(text: str, path=None, overrides=None,
     """Check and resolve case-file text (``path`` names it and anchors ``output.folder``).
 
     Every value of a ``[sweep]`` is also tried on its own, so a sweep that
-    would fail at one of its values is reported now.
+    would fail at one of its values is reported now. The shapes are checked
+    for what the mesher cannot handle (:func:`~whorl.cases.limits.check_shapes`);
+    a sweep checks each point's shapes when it runs.
     """
     overrides = dict(overrides or {})
     case = _build(text, path, overrides)
+    check_shapes(case.document, case.geometry)
     if case.sweep is not None:
         count = sweep_size(case.sweep)
         if max_points and count > max_points:
@@ -198,7 +201,6 @@ def _build(text: str, path, overrides: dict) -> Case:
 
     geometry = Geometry(tuple(e.spec for e in entries), domain.spec, model.axisymmetric,
                         model.unit_m, options)
-    check_shapes(doc, geometry)
     document = dict(doc)
     document["_resolved"] = {"overrides": dict(overrides), "waveforms": waveforms}
     return Case(

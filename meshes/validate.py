@@ -277,7 +277,7 @@ def _check_covered(geometry: Geometry) -> None:
                 continue
             inside = contains(other.shape, outline[:, 0], outline[:, 1])
             if inside is not None and inside.all():
-                raise ShapeProblem(region.name, "", f"the region lies entirely inside the "
+                raise ShapeProblem(region.name, "", f"the region is covered entirely by the "
                                                     f"later region {other.name!r}, which wins "
                                                     "where regions overlap, so this one would "
                                                     "have no elements")

@@ -20,6 +20,7 @@ from dataclasses import replace
 from pathlib import Path
 
 from whorl.cases.errors import CaseError
+from whorl.cases.limits import check_shapes
 from whorl.cases.run import solve_case, write_results
 from whorl.cases.sweep.summary import main_numbers
 from whorl.meshes.build import build_mesh
@@ -61,6 +62,10 @@ def execute(payload: dict) -> dict:
     out = {"worker": worker_name(), "meshed": False, "mesh": None}
     try:
         if mesh is None:
+            try:  # what would hang or break the mesher, found before it starts
+                check_shapes(payload["case"].document, payload["geometry"])
+            except CaseError as exc:
+                raise MeshError(f"found before meshing: {exc}") from None
             say("meshing")
             with _MESH_LOCK:
                 mesh = built = build_mesh(payload["geometry"], progress=say)

@@ -152,7 +152,7 @@ def _polygon(points):
      "repeats corner 2"),
     (_case(REGION2, REGION2 + "\n[[region]]\nname = \"cover\"\nmaterial = \"air\"\n"
                               "shape = \"rectangle\"\ncorner = [19, -21]\nsize = [36, 42]"),
-     "region[2]", "entirely inside the later region 'cover'"),
+     "region[2]", "covered entirely by the later region 'cover'"),
     (_case("margin = 1.5", "margin = 1e300"), "domain.margin", "beyond"),
     (_case("margin = 1.5", "margin = 1e7"), "domain.margin", "times the size"),
 ])

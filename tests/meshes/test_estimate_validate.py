@@ -75,7 +75,7 @@ def test_covered_region_and_absurd_domain():
     domain = DomainSpec("rectangle", corner=(-50, -50), size=(100, 100))
     inner = RegionSpec("inner", Circle((0, 0), 1))
     outer = RegionSpec("outer", Rectangle((-2, -2), (4, 4)))
-    with pytest.raises(ShapeProblem, match="entirely inside") as info:
+    with pytest.raises(ShapeProblem, match="covered entirely") as info:
         check_geometry(Geometry((inner, outer), domain))
     assert info.value.region == "inner"
     check_geometry(Geometry((outer, inner), domain))  # the later one is drawn on top: fine
