@@ -99,6 +99,11 @@ def _print_status(info: dict) -> int:
     if not info["started"]:
         print(f"not started: the case's sweep has {info['expected']} points")
         return 0
+    if info.get("damaged"):
+        print(f"the sweep's store is damaged: {info['damaged']}")
+        print(f"{info['finished_folders']} finished point folders are intact; running the "
+              "sweep again sets the damaged store aside and rebuilds it from them")
+        return 0
     c = info["counts"]
     state = "running" if info["running"] else "stopped"
     print(f"{state}: {c['done']} done, {c['failed']} failed, {c['running']} running, "
@@ -129,6 +134,8 @@ def handle(args) -> int:
     finally:
         bar.close()
     c = outcome.counts
+    if outcome.repaired:
+        print(f"note: {outcome.repaired}")
     print(f"sweep: {c['done']} of {c['total']} points done, {c['failed']} failed "
           f"({outcome.ran} run now, {outcome.meshed} "
           f"mesh{'' if outcome.meshed == 1 else 'es'} built)")

@@ -6,6 +6,8 @@ What a run does
 2. Take the sweep folder's lock (one runner per folder), open the store and
    compare the case's fingerprint with the one the sweep started with: a
    changed case is refused unless ``restart``.
+   A damaged store is set aside and rebuilt from the finished point folders
+   (:mod:`.recover`).
 3. Resume: points already in the store keep their number and results; points
    left ``running`` by a stopped run become pending again (failed ones too
    with ``retry_failed``); leftover temporary folders are removed.
@@ -20,6 +22,7 @@ What a run does
 
 from __future__ import annotations
 
+import logging
 import os
 import shutil
 import time
@@ -47,8 +50,11 @@ from whorl.cases.sweep.points import (
     group_points,
     point_case,
 )
+from whorl.cases.sweep.recover import adopt_points, set_aside, store_damage
 from whorl.cases.sweep.store import STORE_NAME, SweepStore, case_fingerprint
 from whorl.cases.sweep.summary import write_summary
+
+log = logging.getLogger(__name__)
 
 
 class SweepConflict(CaseError):
@@ -69,6 +75,7 @@ class SweepOutcome:
     meshed: int = 0
     files: list = field(default_factory=list)
     timing_s: dict = field(default_factory=dict)
+    repaired: str | None = None  # what was wrong with a damaged store, and what was done
 
 
 def sweep_folder(case, out=None) -> Path:
@@ -138,13 +145,37 @@ def run_sweep(path, overrides=None, out=None, workers: int | None = None, schedu
         if restart:
             _clear(folder)
             write_marker(folder, "sweep")
+        damage = store_damage(folder / STORE_NAME)
+        if damage:
+            aside = set_aside(folder / STORE_NAME)
         store = SweepStore(folder / STORE_NAME)
         try:
             _check_fingerprint(store, case, overrides)
-            return _run(store, case, specs, folder, overrides, workers, scheduler,
-                        point_timeout, retry_failed, progress, runner, max_elements)
+            repaired = None
+            if damage:
+                adopted = _rebuild(store, case, specs, folder, overrides)
+                repaired = (f"the sweep's store was damaged: {damage}. It was set aside as "
+                            f"{aside.name} and rebuilt from the finished point folders "
+                            f"({adopted} adopted); points without a folder run again")
+                log.warning(repaired)
+            outcome = _run(store, case, specs, folder, overrides, workers, scheduler,
+                           point_timeout, retry_failed, progress, runner, max_elements)
+            outcome.repaired = repaired
+            return outcome
         finally:
             store.close()
+
+
+def _rebuild(store, case, specs, folder, overrides) -> int:
+    """Adopt the finished point folders into a new store (see :mod:`.recover`)."""
+    params = []
+    for spec in specs:
+        try:
+            params.append(point_case(case.text, case.path, {**overrides, **spec}).parameters)
+        except CaseError:
+            params.append(None)
+    return adopt_points(store, folder, case_fingerprint(case, overrides), overrides, specs,
+                        params)
 
 
 def _check_fingerprint(store, case, overrides) -> None:
@@ -173,6 +204,9 @@ def _run(store, case, specs, folder, overrides, workers, scheduler, point_timeou
     points_dir.mkdir(exist_ok=True)
     for stale in points_dir.glob(".*"):
         shutil.rmtree(stale, ignore_errors=True)
+    # temporary files of a summary, report or plot cut short (this process holds the lock)
+    for stale in [*folder.glob(".*.tmp"), *folder.glob("plots/.*.tmp.png")]:
+        stale.unlink(missing_ok=True)
     text = case.text  # the text that was read and checked, not the file as it is now
     status = {p["point"]: p["status"] for p in store.points()}
     cases = {}

@@ -5,12 +5,15 @@ region's elements (``subdomain:NAME``) and each side's facets
 (``boundary:NAME``), plus a JSON record of the rest of the
 :class:`~whorl.meshes.tagged.TaggedMesh` (region order, unit, axisymmetry,
 background, mesher info, the exterior disk of an open boundary). Files are
-written to a temporary name and renamed, so a reader never sees half a mesh.
+written to a temporary name and renamed, so a reader never sees half a mesh;
+an entry that cannot be read anyway (zero length, truncated, garbage) is a
+miss: it is removed and the mesh built again.
 """
 
 from __future__ import annotations
 
 import json
+import logging
 import os
 from dataclasses import asdict
 from pathlib import Path
@@ -19,6 +22,8 @@ import numpy as np
 import skfem
 
 from whorl.meshes.tagged import KelvinMap, TaggedMesh
+
+log = logging.getLogger(__name__)
 
 
 class MeshCache:
@@ -40,7 +45,13 @@ class MeshCache:
             return None
         try:
             return load_mesh(path)
-        except (OSError, ValueError, KeyError):
+        except Exception as exc:  # any damage: a miss, and the file goes
+            log.warning("mesh cache entry %s is damaged (%s: %s); meshing again", path.name,
+                        type(exc).__name__, exc)
+            try:
+                path.unlink()
+            except OSError:
+                pass
             return None
 
     def save(self, key: str, tagged: TaggedMesh) -> Path:

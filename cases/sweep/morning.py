@@ -14,6 +14,7 @@ from __future__ import annotations
 import base64
 import html
 import math
+import os
 from pathlib import Path
 
 from matplotlib.backends.backend_agg import FigureCanvasAgg
@@ -90,8 +91,14 @@ def plot_quantity(records: list[dict], quantity: str, axes: list[str], mode: str
         if series is not None:
             ax.legend(fontsize=8)
     fig.suptitle(quantity)
-    fig.savefig(path, dpi=dpi)
-    return Path(path)
+    path = Path(path)
+    tmp = path.with_name(f".{path.stem}.{os.getpid()}.tmp{path.suffix}")
+    try:
+        fig.savefig(tmp, dpi=dpi)
+        os.replace(tmp, path)  # a stopped sweep leaves the old picture or the new one
+    finally:
+        tmp.unlink(missing_ok=True)
+    return path
 
 
 def write_morning(case, points: list[dict], axes: list[str], folder) -> list[Path]:
@@ -168,5 +175,11 @@ def write_report(case, points: list[dict], axes: list[str], images, path) -> Pat
     if len(rows) > TABLE_ROWS:
         parts.append(f"<p>First {TABLE_ROWS} of {len(rows)} rows: see summary.csv.</p>")
     parts.append("</body></html>")
-    Path(path).write_text("\n".join(parts), encoding="utf-8")
-    return Path(path)
+    path = Path(path)
+    tmp = path.with_name(f".{path.name}.{os.getpid()}.tmp")
+    try:
+        tmp.write_text("\n".join(parts), encoding="utf-8")
+        os.replace(tmp, path)  # a stopped sweep leaves the old report or the new one
+    finally:
+        tmp.unlink(missing_ok=True)
+    return path

@@ -6,6 +6,7 @@ import time
 
 from whorl.cases.sweep.driver import load_sweep, sweep_folder
 from whorl.cases.sweep.lock import is_running
+from whorl.cases.sweep.recover import finished_folders, store_damage
 from whorl.cases.sweep.store import STORE_NAME, SweepStore, case_fingerprint
 
 
@@ -19,7 +20,9 @@ def sweep_status(path, overrides=None, out=None, max_points: int = 0) -> dict:
         sweep process holds the folder's lock); ``counts`` by status (of the
         points in the store; ``expected`` points in the case's sweep);
         ``case_changed``; ``rate_per_hour`` and ``eta_s`` from the latest run;
-        ``failures`` (point, error) of failed points.
+        ``failures`` (point, error) of failed points; for a damaged store only
+        ``damaged`` (what is wrong) and ``finished_folders`` (points a resume
+        will adopt at most).
     """
     overrides = dict(overrides or {})
     case, specs = load_sweep(path, overrides, max_points)
@@ -27,6 +30,11 @@ def sweep_status(path, overrides=None, out=None, max_points: int = 0) -> dict:
     info = {"folder": folder, "expected": len(specs), "started": False,
             "running": is_running(folder)}
     if not (folder / STORE_NAME).exists():
+        return info
+    damage = store_damage(folder / STORE_NAME)
+    if damage:
+        info.update(started=True, damaged=damage,
+                    finished_folders=len(finished_folders(folder)))
         return info
     store = SweepStore(folder / STORE_NAME, readonly=True)
     try:

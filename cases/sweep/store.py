@@ -64,7 +64,12 @@ def case_fingerprint(case, overrides: dict) -> str:
     The parsed TOML is hashed, so comments and layout may change; any change of
     a value anywhere else in the case changes the fingerprint.
     """
-    doc = {k: v for k, v in case.document.items() if k not in ("sweep", "_resolved")}
+    return document_hash(case.document, overrides)
+
+
+def document_hash(document: dict, overrides: dict) -> str:
+    """The fingerprint of a parsed case document (see :func:`case_fingerprint`)."""
+    doc = {k: v for k, v in document.items() if k not in ("sweep", "_resolved")}
     text = json.dumps({"case": doc, "set": dict(overrides)}, sort_keys=True, default=str)
     return hashlib.sha256(text.encode()).hexdigest()
 
