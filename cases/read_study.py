@@ -11,7 +11,8 @@ KINDS = ("harmonic", "static", "transient")
 SCHEMES = ("bdf2", "implicit-euler")
 REDUCED = ("auto", "on", "off")
 TANK = ("parallel", "series")
-_KEYS = {"harmonic": {"frequency", "reduced", "reduced_tolerance"}, "static": set(),
+_KEYS = {"harmonic": {"frequency", "reduced", "reduced_tolerance", "tank_capacitance",
+                      "tank_connection"}, "static": set(),
          "transient": {"end", "step", "scheme", "save_every"}}
 
 

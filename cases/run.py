@@ -19,6 +19,11 @@ from whorl.cases.meshing import DEFAULT_MESH_TIME_LIMIT, mesh_with_limit
 from whorl.cases.output import staged_folder
 from whorl.cases.run_transient import series_tables, solve_transient
 from whorl.postprocess.balance import TOLERANCE as BALANCE_TOLERANCE
+from whorl.postprocess.frequency_response import (
+    plot_frequency_response,
+    resonance,
+    response_table,
+)
 from whorl.postprocess.plots import (
     PLOTS,
     frequency_text,
@@ -128,6 +133,11 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None,
         timing["postprocess"] = time.perf_counter() - t1
         if "reduced" in info:
             body["frequency_sweep"] = info["reduced"]
+        if case.study.tank_capacitance is not None:
+            body["resonance"] = resonance(body["solutions"], case.study.tank_capacitance,
+                                          case.study.tank_connection)
+            for name, res in body["resonance"].items():
+                log.info("source %s: %s", name, res["note"])
         body["warnings"] = model_warnings(case, mesh, body["solutions"])
         for text in body["warnings"]:
             log.warning(text)
@@ -180,6 +190,14 @@ def write_pictures(case, results, solutions, folder: Path, lines: dict) -> tuple
             files.append(plot_frequency_curves(results["solutions"],
                                                folder / "frequency_curves.png"))
             images["against frequency"] = files[-1]
+    if len(solutions) > 1 and "solutions" in results:  # the response: always, it is cheap
+        tank = (case.study.tank_capacitance, case.study.tank_connection) \
+            if case.study.tank_capacitance is not None else None
+        files.append(plot_frequency_response(results["solutions"],
+                                             folder / "frequency_response.png",
+                                             case.title or case.name,
+                                             results.get("frequency_sweep"), tank))
+        images["frequency response"] = files[-1]
     return files, images
 
 
@@ -191,9 +209,19 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
     path = folder / "results.json"
     path.write_text(json.dumps(results, indent=2, allow_nan=True), encoding="utf-8")
     files.append(path)
+    tables = None
     if "solutions" in results:
         files.append(write_csv(folder / "regions.csv",
                                *region_table(results["solutions"], case.axisymmetric)))
+        if len(results["solutions"]) > 1:
+            response = response_table(results["solutions"], results.get("frequency_sweep"))
+            files.append(write_csv(folder / "frequency_response.csv", *response))
+            tables = {"Frequency response": response}
+            if results.get("resonance"):
+                tables["Resonance with the tank capacitor"] = (
+                    ["source", "connection", "capacitance_f", "frequency_hz", "note"],
+                    [[n, r["connection"], r["capacitance_f"], r["frequency_hz"], r["note"]]
+                     for n, r in results["resonance"].items()])
     for line in case.lines:
         header, rows = None, []
         for s in solutions:
@@ -206,7 +234,6 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
         lines[line.name] = (header, rows)
     pictures, images = write_pictures(case, results, solutions, folder, lines)
     files += pictures
-    tables = None
     if "series" in results:
         files += series_tables(results["series"], folder)
         if case.output.plots:

@@ -58,6 +58,43 @@ def series_summary(series: dict) -> list[str]:
     return out
 
 
+LONG_LIST = 12  # more solutions than this: details at the ends and the middle only
+
+
+def response_summary(results: dict) -> list[str]:
+    """The reduced sweep's bookkeeping, each source's range of R, L and power factor over
+    a frequency list, and the resonance with the tank capacitor."""
+    out = []
+    sols = sorted(results.get("solutions", []), key=lambda r: r["frequency_hz"])
+    sweep = results.get("frequency_sweep")
+    if sweep:
+        out.append(f"reduced frequency sweep: {len(sweep['frequencies_hz'])} frequencies from "
+                   f"{len(sweep['full_solve_frequencies_hz'])} full solves (basis "
+                   f"{sweep['basis_size']}), largest estimated error "
+                   f"{max(sweep['estimated_error'], default=0.0):.1e} (tolerance "
+                   f"{sweep['tolerance']:g})")
+    if len(sols) > 1:
+        lo, hi = sols[0], sols[-1]
+        for name in lo["sources"]:
+            if name not in hi["sources"]:
+                continue
+            a, b = lo["sources"][name], hi["sources"][name]
+            pf = [s["sources"][name].get("power_factor") for s in sols
+                  if name in s["sources"]]
+            pf = [p for p in pf if p is not None]
+            out.append(f"source {name} from {_eng(lo['frequency_hz'], 'Hz')} to "
+                       f"{_eng(hi['frequency_hz'], 'Hz')}: R {_eng(a['resistance_ohm'], 'ohm')}"
+                       f" to {_eng(b['resistance_ohm'], 'ohm')}, L {_eng(a['inductance_h'], 'H')}"
+                       f" to {_eng(b['inductance_h'], 'H')}"
+                       + (f", power factor {min(pf):.3f} to {max(pf):.3f}" if pf else ""))
+    for name, res in (results.get("resonance") or {}).items():
+        f = res["frequency_hz"]
+        out.append(f"source {name}: " + (f"resonance with the {res['connection']} tank "
+                                         f"capacitor {_eng(res['capacitance_f'], 'F')} at "
+                                         f"{_eng(f, 'Hz')}" if f is not None else res["note"]))
+    return out
+
+
 def summary_text(results: dict) -> str:
     """The main numbers of every solution of ``results`` (a results.json record)."""
     lines = []
@@ -70,7 +107,14 @@ def summary_text(results: dict) -> str:
                  f"{results['timing_s']['total']:.1f} s")
     if "series" in results:
         lines += series_summary(results["series"])
-    for sol in results.get("solutions", []):
+    lines += response_summary(results)
+    solutions = results.get("solutions", [])
+    if len(solutions) > LONG_LIST:  # a frequency response: its ends and middle in detail
+        keep = sorted({0, len(solutions) // 2, len(solutions) - 1})
+        lines.append(f"details at {len(keep)} of {len(solutions)} frequencies; every "
+                     "frequency is in frequency_response.csv and results.json")
+        solutions = [solutions[k] for k in keep]
+    for sol in solutions:
         lines.append("")
         totals = sol["totals"]
         winding = totals.get("winding_loss_w") or 0.0

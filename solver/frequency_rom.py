@@ -92,6 +92,7 @@ class SweepReport:
             "basis_size": self.basis_size,
             "expansion_frequencies_hz": sorted(self.expansion_hz),
             "full_solve_frequencies_hz": sorted(set(self.full_hz)),
+            "frequencies_hz": [float(f) for f in frequencies],
             "estimated_error": [self.estimates.get(float(f), 0.0) for f in frequencies],
         }
 
@@ -256,9 +257,10 @@ class _Sweep:
         S1 = self.red.S1_ff
         for _ in range(MOMENTS - 1):
             v = solve(S1 @ v)
-            v /= np.linalg.norm(v)
-            if self.basis.add(v) == 0:
+            norm = np.linalg.norm(v)
+            if norm == 0 or self.basis.add(v / norm) == 0:
                 break
+            v = v / norm
 
     def _observed(self, cols):
         """The ``forms.rows`` of free-numbering columns in the full numbering (fixed: 0)."""

@@ -100,3 +100,29 @@ def test_tube_forming_pulse(tmp_path, capsys):
     snapshots = (folder / "snapshots.pvd").read_text()
     assert snapshots.count("<DataSet") == len(list((folder / "snapshots").glob("*.vtu")))
     assert "peak current" in out
+
+
+def test_billet_heater_tank(tmp_path, capsys):
+    """The frequency-response demo: a few full solves serve 80 frequencies; the reduced
+    answers keep Poynting's balance (Galerkin projection: x^H A x = x^H b holds for every
+    reduced x); the parallel tank resonates where X / (omega |Z|^2) = C (common practice)."""
+    results, folder, out = run("billet-heater-tank", tmp_path, capsys)
+    sweep = results["frequency_sweep"]
+    assert len(results["solutions"]) == 80
+    assert len(sweep["full_solve_frequencies_hz"]) <= 6
+    assert max(sweep["estimated_error"]) <= 1e-6
+    for sol in results["solutions"]:
+        assert sol["totals"]["power_balance"]["relative_mismatch"] < 1e-6
+    res = results["resonance"]["inductor"]
+    f = res["frequency_hz"]
+    sols = sorted(results["solutions"], key=lambda s: s["frequency_hz"])
+    k = next(i for i, s in enumerate(sols) if s["frequency_hz"] > f)
+    lo, hi = sols[k - 1], sols[k]
+    t = np.log(f / lo["frequency_hz"]) / np.log(hi["frequency_hz"] / lo["frequency_hz"])
+    z = np.exp((1 - t) * np.log(complex(*lo["sources"]["inductor"]["impedance_ohm"]))
+               + t * np.log(complex(*hi["sources"]["inductor"]["impedance_ohm"])))
+    omega = 2 * np.pi * f
+    assert z.imag / (omega * abs(z) ** 2) == pytest.approx(40e-6, rel=0.01)
+    for name in ("frequency_response.csv", "frequency_response.png", "report.html"):
+        assert (folder / name).stat().st_size > 0
+    assert "resonance with the parallel tank capacitor" in out

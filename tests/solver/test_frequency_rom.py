@@ -191,6 +191,8 @@ def test_nonlinear_and_moving_models_fall_back_to_full_solves(caplog):
     ('reduced = "maybe"', "study.reduced"),
     ("reduced_tolerance = 0.5", "study.reduced_tolerance"),
     ("reduced_tolerance = -1e-6", "study.reduced_tolerance"),
+    ('tank_capacitance = "2 mH"', "study.tank_capacitance"),
+    ('tank_connection = "diagonal"', "study.tank_connection"),
 ])
 def test_bad_study_keys_exit_2_with_the_key_path(tmp_path, capsys, line, key):
     from whorl.cases.cli import main

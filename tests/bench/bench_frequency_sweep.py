@@ -1,0 +1,134 @@
+"""A whole frequency response against one frequency (a benchmark, not a test).
+
+An invented axisymmetric heater (a non-magnetic steel billet, 1 MS/m, in a 24-turn
+stranded coil driven at 800 A), P2, about 1.5e5 unknowns, meshed once for the highest
+frequency (meshing is left out of every figure). Printed side by side, each with assembly
+included:
+
+- one frequency (10 kHz), the plain cost of a harmonic solve;
+- 200 log-spaced frequencies from 200 Hz to 50 kHz through the reduced-order sweep
+  (``reduced = "auto"``), with its full solves and largest estimated error;
+- the 10-frequency list 200 Hz to 50 kHz solved the old way (``reduced = "off"``), one
+  factorisation per frequency;
+- the postprocessing of each (``solution_record`` per frequency), apart;
+- the agreement of the reduced sweep with full solves at 5 frequencies of the 200.
+
+Usage: python tests/bench/bench_frequency_sweep.py [--max-size MM] [--count 200]
+"""
+
+from __future__ import annotations
+
+import argparse
+import time
+
+import numpy as np
+
+from whorl.cases import model
+from whorl.cases.loader import parse_case
+from whorl.meshes.build import build_mesh
+from whorl.postprocess.circuits import source_results
+from whorl.postprocess.records import solution_record
+from whorl.postprocess.regions import region_totals
+from whorl.solver.harmonic import solve_harmonic
+
+HEATER = """\
+format = 1
+[case]
+name = "bench-frequency-response"
+[model]
+geometry = "axisymmetric"
+length_unit = "mm"
+order = 2
+[material.hot-steel]
+conductivity = "1 MS/m"
+[[region]]
+name = "billet"
+material = "hot-steel"
+shape = "rectangle"
+corner = [0, -100]
+size = [40, 200]
+[[region]]
+name = "coil"
+material = "copper"
+shape = "rectangle"
+corner = [55, -120]
+size = [12, 240]
+[domain]
+shape = "rectangle"
+corner = [0, -300]
+size = [300, 600]
+[[source]]
+name = "coil"
+kind = "stranded"
+regions = ["coil"]
+turns = 24
+current = "800 A"
+[study]
+kind = "harmonic"
+frequency = "50 kHz"
+[mesh]
+max_size = {max_size}
+per_skin_depth = 3
+"""
+
+
+def timed(fn, *args, **kw):
+    t0 = time.perf_counter()
+    out = fn(*args, **kw)
+    return out, time.perf_counter() - t0
+
+
+def postprocess(solutions):
+    t0 = time.perf_counter()
+    for s in solutions:
+        solution_record(s)
+    return time.perf_counter() - t0
+
+
+def main():
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--max-size", type=float, default=2.2)
+    ap.add_argument("--count", type=int, default=200)
+    args = ap.parse_args()
+    case = parse_case(HEATER.format(max_size=args.max_size))
+    mesh, t_mesh = timed(build_mesh, model.sized_geometry(case))
+    problem = model.problem(case, mesh)
+    freqs = list(np.geomspace(200, 50e3, args.count))
+    ten = list(np.geomspace(200, 50e3, 10))
+
+    (one, info1), t1 = timed(solve_harmonic, problem, [10e3])
+    p1 = postprocess(one)
+    (many, info), t200 = timed(solve_harmonic, problem, freqs)
+    p200 = postprocess(many)
+    (old, info10), t10 = timed(solve_harmonic, problem, ten, reduced="off")
+    p10 = postprocess(old)
+    sweep = info.get("reduced", {})
+    print(f"unknowns {info1['unknowns']}, backend {info1['backend']}, meshing {t_mesh:.1f} s "
+          "(not counted)")
+    print(f"{'run':44s} {'solve s':>8s} {'x one':>6s} {'post s':>7s}")
+    print(f"{'one frequency (10 kHz)':44s} {t1:8.2f} {1.0:6.2f} {p1:7.2f}")
+    print(f"{f'{len(freqs)} frequencies, reduced sweep':44s} {t200:8.2f} {t200 / t1:6.2f} "
+          f"{p200:7.2f}")
+    print(f"{'10 frequencies, one factorisation each':44s} {t10:8.2f} {t10 / t1:6.2f} "
+          f"{p10:7.2f}")
+    if sweep:
+        print(f"reduced sweep: {len(sweep['full_solve_frequencies_hz'])} full solves at "
+              f"{', '.join(f'{f:.0f}' for f in sweep['full_solve_frequencies_hz'])} Hz, basis "
+              f"{sweep['basis_size']}, largest estimated error "
+              f"{max(sweep['estimated_error']):.1e}")
+    pick = [freqs[i] for i in np.linspace(0, len(freqs) - 1, 5).astype(int)]
+    full, _ = solve_harmonic(problem, pick, reduced="off")
+    worst_z = worst_p = 0.0
+    by_f = {s.frequency_hz: s for s in many}
+    for s in full:
+        r = by_f[s.frequency_hz]
+        za, zb = source_results(r)["coil"].impedance_ohm, source_results(s)["coil"].impedance_ohm
+        pa, pb = region_totals(r)["billet"].loss_w, region_totals(s)["billet"].loss_w
+        worst_z = max(worst_z, abs(za - zb) / abs(zb))
+        worst_p = max(worst_p, abs(pa - pb) / pb)
+    print(f"reduced against full at {len(pick)} frequencies (ends included): impedance "
+          f"{worst_z:.1e}, billet loss {worst_p:.1e} (relative)")
+
+
+if __name__ == "__main__":
+    main()
