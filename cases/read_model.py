@@ -83,10 +83,11 @@ def read_model(table: Table) -> ModelInfo:
 def read_mesh(table: Table | None, order: int) -> MeshOptions:
     """Optional ``[mesh]``: ``per_skin_depth`` (elements per skin depth at conductor
     surfaces), ``growth`` (> 1), ``max_size`` (length unit), ``across`` (elements
-    across a thin conductor, >= 1)."""
+    across a thin conductor, >= 1), ``curved`` (order 2: element edges follow curved
+    boundaries; default true)."""
     if table is None:
         return MeshOptions(order=order)
-    table.allow({"per_skin_depth", "growth", "max_size", "across"})
+    table.allow({"per_skin_depth", "growth", "max_size", "across", "curved"})
     per = table.positive("per_skin_depth", "dimensionless", None)
     growth = table.value("growth", "dimensionless", 1.25)
     if growth <= 1:
@@ -94,5 +95,6 @@ def read_mesh(table: Table | None, order: int) -> MeshOptions:
                                     f"sizes), got {growth:g}")
     max_size = table.positive("max_size", "length", None, geometry=True)
     across = table.integer("across", 3, minimum=1)
+    curved = table.boolean("curved", True)
     return MeshOptions(order=order, per_skin_depth=per, growth=growth, max_size=max_size,
-                       across=across)
+                       across=across, curved=curved)

@@ -5,20 +5,15 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 from whorl.cases.errors import CaseError
-from whorl.cases.limits import MAX_POLYGON_POINTS, MAX_REPEAT, check_count
+from whorl.cases.limits import MAX_REPEAT, check_count
 from whorl.cases.names import MAX_NAME, valid_name
+from whorl.cases.read_shapes import REQUIRED, SHAPE_KEYS, read_shape
 from whorl.cases.reader import Context, Table, array_of_tables
 from whorl.meshes.geometry import RegionSpec
-from whorl.meshes.shapes import SHAPES, Circle, Polygon, Rectangle, Ring
+from whorl.meshes.shapes import shifted
 
 RESERVED = ("domain",)
-COMMON = {"name", "material", "shape", "mesh_size", "repeat"}
-SHAPE_KEYS = {
-    "rectangle": {"corner", "size"},
-    "circle": {"center", "radius"},
-    "ring": {"center", "inner", "outer"},
-    "polygon": {"points"},
-}
+COMMON = {"name", "material", "shape", "mesh_size", "repeat", "subtract"}
 
 
 @dataclass(frozen=True)
@@ -49,14 +44,14 @@ def read_regions(ctx: Context, document: dict) -> list[RegionEntry]:
 
 
 def _read_one(ctx: Context, table: Table) -> list[RegionEntry]:
-    shape_name = table.string("shape", choices=tuple(SHAPES))
+    shape_name = table.string("shape", choices=tuple(SHAPE_KEYS))
     extra = SHAPE_KEYS.get(shape_name, set())
     others = set().union(*SHAPE_KEYS.values()) - extra
     for key in table.data:
         if key in others:
             raise table.error(key, f"{key!r} does not belong to a {shape_name} (it takes "
                                    f"{', '.join(sorted(extra))})")
-    table.allow(COMMON | extra, required=("name", "material") + tuple(sorted(extra)))
+    table.allow(COMMON | extra, required=("name", "material") + REQUIRED[shape_name])
     name = table.string("name")
     if not valid_name(name) or name in RESERVED:
         raise table.error("name", f"{name!r} is not a valid region name: use letters, digits, "
@@ -64,7 +59,7 @@ def _read_one(ctx: Context, table: Table) -> list[RegionEntry]:
                                   "characters")
     material = table.string("material")
     mesh_size = table.positive("mesh_size", "length", None, geometry=True)
-    shape = _SHAPE_READERS[shape_name](table)
+    shape = read_shape(table, shape_name, ctx.axisymmetric)
     if not table.has("repeat"):
         copies = [(name, shape)]
     else:
@@ -95,61 +90,6 @@ def _repeat(table: Table) -> tuple[int, tuple[float, float]]:
     if count > 1 and step[0] == 0 and step[1] == 0:
         raise rep.error("step", "the step is zero: every copy would lie on the first")
     return count, step
-
-
-def _rectangle(table: Table) -> Rectangle:
-    corner = table.point("corner")
-    size = table.point("size")
-    for i, s in enumerate(size, start=1):
-        if s <= 0:
-            raise table.error(f"size[{i}]", f"sizes must be > 0, got {s:g}")
-    return Rectangle(corner, size)
-
-
-def _circle(table: Table) -> Circle:
-    return Circle(table.point("center"), table.positive("radius", "length", geometry=True))
-
-
-def _ring(table: Table) -> Ring:
-    center = table.point("center")
-    inner = table.positive("inner", "length", geometry=True)
-    outer = table.positive("outer", "length", geometry=True)
-    if inner >= outer:
-        raise table.error("inner", f"the inner radius ({inner:g}) must be less than the "
-                                   f"outer radius ({outer:g})")
-    return Ring(center, inner, outer)
-
-
-def _polygon(table: Table) -> Polygon:
-    raw = table.raw("points")
-    if not isinstance(raw, list) or len(raw) < 3:
-        raise table.error("points", "a polygon needs a list of at least 3 points [[x, y], ...]")
-    check_count(table, "points", len(raw), MAX_POLYGON_POINTS, "points")
-    points = []
-    for i, p in enumerate(raw, start=1):
-        if not isinstance(p, list) or len(p) != 2:
-            raise table.error(f"points[{i}]", f"expected a point [x, y], got {p!r}")
-        points.append(tuple(table.convert(v, f"{table.key('points')}[{i}][{j}]", "length",
-                                          True, "points") for j, v in enumerate(p, start=1)))
-    polygon = Polygon(tuple(points))
-    if polygon.area() <= 1e-12 * _extent(polygon) ** 2:
-        raise table.error("points", "the polygon has no area (all points on one line?)")
-    return polygon
-
-
-_SHAPE_READERS = {"rectangle": _rectangle, "circle": _circle, "ring": _ring,
-                  "polygon": _polygon}
-
-
-def shifted(shape, dx: float, dy: float):
-    """A copy of ``shape`` moved by (dx, dy)."""
-    if isinstance(shape, Rectangle):
-        return Rectangle((shape.corner[0] + dx, shape.corner[1] + dy), shape.size)
-    if isinstance(shape, Circle):
-        return Circle((shape.center[0] + dx, shape.center[1] + dy), shape.radius)
-    if isinstance(shape, Ring):
-        return Ring((shape.center[0] + dx, shape.center[1] + dy), shape.inner, shape.outer)
-    return Polygon(tuple((x + dx, y + dy) for x, y in shape.points))
 
 
 def expand(patterns: list[str], regions: list[str], table: Table, key: str) -> tuple[str, ...]:

@@ -10,7 +10,8 @@ curves feeds a Threshold field that grows linearly with the distance (geometric
 growth of neighbouring elements); regions with a ``mesh_size`` add a Constant
 field inside; the Min of all is the background size field.
 
-The result is in metres (coordinates times ``Geometry.unit_m``), first order.
+The result is in metres (coordinates times ``Geometry.unit_m``): straight triangles,
+or with order 2 quadratic triangles whose edges on curves follow them (:mod:`.curved`).
 """
 
 from __future__ import annotations
@@ -22,6 +23,7 @@ import gmsh
 import numpy as np
 import skfem
 
+from whorl.meshes.curved import quadratic_mesh
 from whorl.meshes.errors import MeshError
 from whorl.meshes.geometry import DomainSpec, Geometry
 from whorl.meshes.sizing import SizingPlan, domain_bbox, sizing_plan
@@ -30,6 +32,19 @@ from whorl.meshes.tagged import KelvinMap, TaggedMesh
 BACKGROUND = "domain"
 _TRIANGLE = 2  # gmsh element type: 3-node triangle
 _LINE = 1  # gmsh element type: 2-node line
+_TRIANGLE6 = 9  # gmsh element type: 6-node triangle (corners, then mid-edge nodes 01 12 20)
+_LINE3 = 8  # gmsh element type: 3-node line (ends, then the middle)
+
+
+def curved(geometry: Geometry) -> bool:
+    """Whether the mesh gets mid-edge nodes on the true curves: order 2, ``curved``, and
+    some boundary is curved (a straight-sided model keeps the cheaper affine elements)."""
+    if geometry.options.order < 2 or not geometry.options.curved:
+        return False
+    if geometry.domain.shape == "circle":
+        return True
+    return any(math.isfinite(getattr(r.shape, "curvature_radius", lambda: math.inf)())
+               for r in geometry.regions)
 
 
 def build_mesh(geometry: Geometry, progress=None) -> TaggedMesh:
@@ -85,6 +100,8 @@ def build_mesh(geometry: Geometry, progress=None) -> TaggedMesh:
         say("meshing")
         try:
             gmsh.model.mesh.generate(2)
+            if curved(geometry):
+                gmsh.model.mesh.setOrder(2)
         except Exception as err:  # gmsh raises plain Exception
             raise MeshError(f"gmsh failed to mesh: {err}{_log_tail()}") from err
         say("tagging mesh")
@@ -199,22 +216,25 @@ def _draw(geometry: Geometry) -> tuple[dict[str, list[int]], list[tuple[str, str
     shapes = []
     for region in geometry.regions:
         try:
-            shapes.append((2, region.shape.occ(occ)))
+            drawn = region.shape.occ(occ)
         except Exception as err:
             raise MeshError(f"region '{region.name}': cannot draw its shape: {err}") from err
+        shapes.append([(2, t) for t in (drawn if isinstance(drawn, list) else [drawn])])
     try:
-        _, parts = occ.fragment([(2, domain)], shapes)
+        _, parts = occ.fragment([(2, domain)], [s for group in shapes for s in group])
     except Exception as err:
         raise MeshError(f"cannot combine the regions: {err}{_log_tail()}") from err
     inside = {tag for dim, tag in parts[0] if dim == 2}
     owner = {tag: None for tag in inside}
     covered = set()  # (earlier region, later region that covers part of it)
-    for region, pieces in zip(geometry.regions, parts[1:], strict=True):
-        for dim, tag in pieces:
-            if dim == 2:
-                if owner.get(tag) is not None:
-                    covered.add((owner[tag], region.name))
-                owner[tag] = region.name
+    pieces_of = iter(parts[1:])
+    for region, group in zip(geometry.regions, shapes, strict=True):
+        for _ in group:
+            for dim, tag in next(pieces_of):
+                if dim == 2:
+                    if owner.get(tag) is not None and owner[tag] != region.name:
+                        covered.add((owner[tag], region.name))
+                    owner[tag] = region.name
     stray = [tag for tag in owner if tag not in inside]
     for tag in stray:
         name = owner.pop(tag)
@@ -364,18 +384,23 @@ def _to_skfem(geometry: Geometry, owners, sides) -> TaggedMesh:
     index = np.full(int(node_tags.max()) + 1, -1, dtype=np.int64)
     index[node_tags.astype(np.int64)] = np.arange(len(node_tags))
     xy = coords.reshape(-1, 3)[:, :2]
+    six = curved(geometry)
+    kind, count = (_TRIANGLE6, 6) if six else (_TRIANGLE, 3)
     blocks, labels = [], []
     for name, tags in owners.items():
         for tag in tags:
-            blocks.append(_elements(2, tag, _TRIANGLE, 3, index))
+            blocks.append(_elements(2, tag, kind, count, index))
             labels.append(name)
-    tri = np.concatenate(blocks, axis=0)
+    full = np.concatenate(blocks, axis=0)
+    tri = full[:, :3]
     used, t = np.unique(tri, return_inverse=True)
     t = t.reshape(-1, 3)
     renumber = np.full(len(node_tags), -1, dtype=np.int64)
     renumber[used] = np.arange(len(used))
     p = xy[used].T * geometry.unit_m
     mesh = skfem.MeshTri(np.ascontiguousarray(p), np.ascontiguousarray(t.T))
+    if six:
+        mesh = quadratic_mesh(mesh, t, xy[full[:, 3:]] * geometry.unit_m)
     bounds = np.cumsum([0] + [len(b) for b in blocks])
     subdomains = {name: [] for name in owners}
     for k, name in enumerate(labels):
@@ -384,7 +409,8 @@ def _to_skfem(geometry: Geometry, owners, sides) -> TaggedMesh:
                   for n, v in subdomains.items()}
     boundaries = {}
     for name, curves in sides.items():
-        pairs = [renumber[_elements(1, c, _LINE, 2, index)] for c in curves]
+        pairs = [renumber[_elements(1, c, _LINE3 if six else _LINE, 3 if six else 2,
+                                    index)[:, :2]] for c in curves]
         pairs = np.concatenate(pairs, axis=0) if pairs else np.zeros((0, 2), dtype=np.int64)
         boundaries[name] = _facet_indices(mesh, pairs, name)
     ordered = {r.name: subdomains[r.name] for r in geometry.regions}

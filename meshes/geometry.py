@@ -65,7 +65,9 @@ class MeshOptions:
     2 for P2 and 4 for P1: common practice), ``growth`` the ratio between
     neighbouring element sizes away from a surface, ``max_size`` a global cap
     (length unit; default a twentieth of the domain's extent), ``across`` the
-    least number of elements across a thin conductor.
+    least number of elements across a thin conductor. With ``order`` 2 and
+    ``curved`` (the default) element edges on curved boundaries follow the true
+    curve (isoparametric quadratic triangles, see :mod:`.curved`).
     """
 
     order: int = 2
@@ -75,6 +77,7 @@ class MeshOptions:
     across: int = 3
     algorithm: int = 6  # gmsh Mesh.Algorithm: 6 = Frontal-Delaunay
     threads: int = 0  # 0: gmsh decides
+    curved: bool = True
 
     def elements_per_skin_depth(self) -> float:
         if self.per_skin_depth is not None:

@@ -14,6 +14,7 @@ import os
 import meshio
 import numpy as np
 
+from whorl.meshes.curved import is_curved
 from whorl.meshes.errors import MeshError
 from whorl.meshes.tagged import TaggedMesh
 
@@ -46,14 +47,14 @@ def write_msh(tagged: TaggedMesh, path) -> None:
         elements = tagged.elements(name)
         field_data[name] = np.array([tag, 2])
         if len(elements):
-            cells.append(meshio.CellBlock("triangle", mesh.t[:, elements].T.astype(np.int64)))
+            cells.append(_triangles(mesh, elements))
             tags.append(tag)
     for name in sides:
         tag += 1
         facets = mesh.boundaries[name]
         field_data[name] = np.array([tag, 1])
         if len(facets):
-            cells.append(meshio.CellBlock("line", mesh.facets[:, facets].T.astype(np.int64)))
+            cells.append(_lines(mesh, facets))
             tags.append(tag)
     points = np.zeros((mesh.p.shape[1], 3))
     points[:, :2] = mesh.p.T / tagged.unit_m
@@ -67,6 +68,24 @@ def write_msh(tagged: TaggedMesh, path) -> None:
         field_data=field_data,
     )
     meshio.write(os.fspath(path), out, file_format="gmsh", binary=True)
+
+
+def _triangles(mesh, elements) -> meshio.CellBlock:
+    """Triangles, or 6-node triangles (corners, then mid-edge nodes 01 12 20) if curved."""
+    corners = mesh.t[:, elements].T.astype(np.int64)
+    if not is_curved(mesh):
+        return meshio.CellBlock("triangle", corners)
+    mids = mesh.dofs.element_dofs[3:6, elements].T.astype(np.int64)  # edges 01 12 02
+    return meshio.CellBlock("triangle6", np.column_stack([corners, mids]))
+
+
+def _lines(mesh, facets) -> meshio.CellBlock:
+    """Boundary edges, or 3-node edges (ends, then the middle) if curved."""
+    ends = mesh.facets[:, facets].T.astype(np.int64)
+    if not is_curved(mesh):
+        return meshio.CellBlock("line", ends)
+    middle = mesh.dofs.facet_dofs[0, facets].astype(np.int64)
+    return meshio.CellBlock("line3", np.column_stack([ends, middle]))
 
 
 def read_msh(path) -> meshio.Mesh:

@@ -2,7 +2,7 @@
 
 Every shape is a plain, frozen data object in the model's length unit with two
 duties: its bounding box (for the domain margin and the axis check) and the
-gmsh OCC entity that draws it. New shapes register themselves with
+gmsh OCC entity (or entities) that draw it. New shapes register themselves with
 :func:`register_shape` under the name a case file uses.
 """
 
@@ -12,6 +12,11 @@ import math
 from dataclasses import dataclass
 
 SHAPES: dict[str, type] = {}
+
+
+def shifted(shape, dx: float, dy: float):
+    """A copy of ``shape`` moved by (dx, dy) (length unit)."""
+    return shape.shifted(dx, dy)
 
 
 def register_shape(name: str):
@@ -44,6 +49,9 @@ class Rectangle:
     def area(self) -> float:
         return self.size[0] * self.size[1]
 
+    def shifted(self, dx: float, dy: float) -> Rectangle:
+        return Rectangle((self.corner[0] + dx, self.corner[1] + dy), self.size)
+
     def thickness(self) -> float:
         """Least width: the shorter side (length unit)."""
         return min(self.size)
@@ -70,6 +78,9 @@ class Circle:
 
     def area(self) -> float:
         return math.pi * self.radius**2
+
+    def shifted(self, dx: float, dy: float) -> Circle:
+        return Circle((self.center[0] + dx, self.center[1] + dy), self.radius)
 
     def thickness(self) -> float:
         """Least width: the diameter (length unit)."""
@@ -103,6 +114,9 @@ class Ring:
     def area(self) -> float:
         return math.pi * (self.outer**2 - self.inner**2)
 
+    def shifted(self, dx: float, dy: float) -> Ring:
+        return Ring((self.center[0] + dx, self.center[1] + dy), self.inner, self.outer)
+
     def thickness(self) -> float:
         """Least width: outer minus inner radius (length unit)."""
         return self.outer - self.inner
@@ -129,6 +143,9 @@ class Polygon:
         lines = [occ.addLine(tags[i], tags[(i + 1) % len(tags)]) for i in range(len(tags))]
         loop = occ.addCurveLoop(lines)
         return occ.addPlaneSurface([loop])
+
+    def shifted(self, dx: float, dy: float) -> Polygon:
+        return Polygon(tuple((x + dx, y + dy) for x, y in self.points))
 
     def area(self) -> float:
         p = self.points

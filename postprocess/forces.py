@@ -47,7 +47,7 @@ def shell_force(solution, region: str, fields=None):
     if (material.relative_permeability != 1.0 or material.conductivity != 0
             or not _all_in(shell, problem.mesh.elements(background), mesh.t.shape[1])):
         return None
-    grad_g = _p1_gradient(mesh.p, mesh.t[:, shell], in_region)[:, :, None]  # (2, S, 1)
+    grad_g = _shell_gradient(system.basis, in_region[:mesh.nvertices])[:, shell]  # (2, S, Q)
     b = q.b[:, shell]
     nu = system.nu_q[shell]
     b2 = np.abs(b[0]) ** 2 + np.abs(b[1]) ** 2
@@ -70,12 +70,9 @@ def _all_in(elements, members, count) -> bool:
     return bool(mask[elements].all())
 
 
-def _p1_gradient(p, t, g):
-    """Gradient (2, S) of the piecewise-linear function with nodal values ``g`` on the
-    triangles ``t`` (3, S): sum over the vertices of g_i grad(lambda_i)."""
-    x, y = p[0][t], p[1][t]
-    twice_area = (x[1] - x[0]) * (y[2] - y[0]) - (x[2] - x[0]) * (y[1] - y[0])
-    gv = g[t].astype(float)
-    gx = gv[0] * (y[1] - y[2]) + gv[1] * (y[2] - y[0]) + gv[2] * (y[0] - y[1])
-    gy = gv[0] * (x[2] - x[1]) + gv[1] * (x[0] - x[2]) + gv[2] * (x[1] - x[0])
-    return np.array([gx, gy]) / twice_area
+def _shell_gradient(basis, g):
+    """Gradient (2, elements, quadrature points) of the linear function with vertex values
+    ``g``, through the mesh's own element map (curved elements included)."""
+    from skfem import ElementTriP1
+
+    return np.asarray(basis.with_element(ElementTriP1()).interpolate(g.astype(float)).grad)

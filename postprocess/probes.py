@@ -6,6 +6,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from whorl.meshes.curved import is_curved, straight
 from whorl.postprocess.fields import element_sources
 
 
@@ -30,7 +31,11 @@ class Probe:
 
 def _locate(basis, points, exclude=None):
     """Element of every point (-1 outside, or inside an element listed in ``exclude``)."""
-    finder = basis.mesh.element_finder(mapping=basis.mapping)
+    mesh = basis.mesh
+    if is_curved(mesh):  # found in the straight mesh through the same vertices
+        finder = straight(mesh).element_finder()
+    else:
+        finder = mesh.element_finder(mapping=basis.mapping)
     try:
         cells = np.asarray(finder(points[0], points[1]), dtype=np.int64)
     except ValueError:  # some point is outside: find them one by one

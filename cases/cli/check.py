@@ -43,6 +43,11 @@ def _shape(shape) -> str:
         return f"circle center {_xy(shape.center)} radius {shape.radius:g}"
     if kind == "ring":
         return f"ring center {_xy(shape.center)} radii {shape.inner:g} to {shape.outer:g}"
+    if kind == "outline":
+        arcs = sum(a is not None for a in shape.arcs)
+        return f"outline of {len(shape.vertices)} sides ({arcs} arcs), area {shape.area():.6g}"
+    if kind == "with-holes":
+        return f"{_shape(shape.outer)} less {len(shape.holes)} holes, area {shape.area():.6g}"
     return f"polygon of {len(shape.points)} points"
 
 

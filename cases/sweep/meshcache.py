@@ -21,6 +21,7 @@ from pathlib import Path
 import numpy as np
 import skfem
 
+from whorl.meshes.curved import is_curved
 from whorl.meshes.tagged import KelvinMap, TaggedMesh
 
 log = logging.getLogger(__name__)
@@ -71,7 +72,8 @@ def save_mesh(tagged: TaggedMesh, path) -> Path:
     meta = {"regions": list(tagged.regions), "unit_m": tagged.unit_m,
             "axisymmetric": tagged.axisymmetric, "background": tagged.background,
             "info": tagged.info, "kelvin": asdict(tagged.kelvin) if tagged.kelvin else None,
-            "subdomains": list(mesh.subdomains or {}), "boundaries": list(mesh.boundaries or {})}
+            "subdomains": list(mesh.subdomains or {}), "boundaries": list(mesh.boundaries or {}),
+            "curved": is_curved(mesh)}
     arrays["meta"] = np.frombuffer(json.dumps(meta, default=float).encode(), dtype=np.uint8)
     tmp = path.with_name(f".{path.name}.{os.getpid()}.tmp")
     with open(tmp, "wb") as f:
@@ -84,7 +86,8 @@ def load_mesh(path) -> TaggedMesh:
     """Read a mesh written by :func:`save_mesh`."""
     with np.load(path, allow_pickle=False) as data:
         meta = json.loads(bytes(data["meta"]).decode())
-        mesh = skfem.MeshTri(np.ascontiguousarray(data["p"]), np.ascontiguousarray(data["t"]))
+        kind = skfem.MeshTri2 if meta.get("curved") else skfem.MeshTri
+        mesh = kind(np.ascontiguousarray(data["p"]), np.ascontiguousarray(data["t"]))
         subdomains = {n: data[f"subdomain:{n}"] for n in meta["subdomains"]}
         boundaries = {n: data[f"boundary:{n}"] for n in meta["boundaries"]}
     mesh = mesh.with_subdomains(subdomains).with_boundaries(boundaries)

@@ -86,7 +86,7 @@ def test_mesh_is_in_metres_and_uses_every_node():
     g = Geometry((RegionSpec("c", Circle((0.0, 0.0), 10.0)),), BOX, unit_m=1e-3)
     tagged = build_mesh(g)
     assert np.abs(tagged.mesh.p).max() == pytest.approx(0.05)
-    assert np.array_equal(np.unique(tagged.mesh.t), np.arange(tagged.mesh.p.shape[1]))
+    assert np.array_equal(np.unique(tagged.mesh.t), np.arange(tagged.mesh.nvertices))
 
 
 def test_later_region_covers_earlier_one():

@@ -9,6 +9,7 @@ from whorl.meshes import (
     DomainSpec,
     Geometry,
     MeshError,
+    MeshOptions,
     Rectangle,
     RegionSpec,
     Ring,
@@ -19,8 +20,8 @@ from whorl.meshes import (
 from whorl.postprocess.meshplot import plot_mesh, unit_name
 
 
-@pytest.fixture(scope="module")
-def tagged():
+@pytest.fixture(scope="module", params=[1, 2], ids=["straight", "curved"])
+def tagged(request):
     regions = (
         RegionSpec("shaft", Rectangle((0.0, -20.0), (6.0, 40.0)), skin_depth=1.5),
         RegionSpec("turn.1", Circle((10.0, -4.0), 2.0)),
@@ -29,7 +30,8 @@ def tagged():
     )
     # the sleeve's ring would cross the axis: keep the model planar
     domain = DomainSpec("rectangle", corner=(-40.0, -50.0), size=(80.0, 100.0))
-    return build_mesh(Geometry(regions, domain, unit_m=1e-3))
+    return build_mesh(Geometry(regions, domain, unit_m=1e-3,
+                               options=MeshOptions(order=request.param)))
 
 
 def test_round_trip(tagged, tmp_path):
@@ -39,7 +41,9 @@ def test_round_trip(tagged, tmp_path):
     back = read_msh(path)
     mesh = tagged.mesh
     assert back.points.shape[0] == mesh.p.shape[1]
-    triangles = [b for b in back.cells if b.type == "triangle"]
+    curved = tagged.mesh.p.shape[1] > tagged.mesh.t.max() + 1
+    tri, line = ("triangle6", "line3") if curved else ("triangle", "line")
+    triangles = [b for b in back.cells if b.type == tri]
     assert sum(len(b.data) for b in triangles) == mesh.t.shape[1]
     names = {*tagged.regions, "domain", "left", "right", "bottom", "top"}
     assert set(back.field_data) == names
@@ -49,14 +53,15 @@ def test_round_trip(tagged, tmp_path):
     for name in (*tagged.regions, "domain"):
         tag = back.field_data[name][0]
         blocks = [b.data for b, t in zip(back.cells, physical, strict=True)
-                  if b.type == "triangle" and t[0] == tag]
-        got = np.sort(back.points[np.concatenate(blocks)][:, :, :2].reshape(-1, 6), axis=0)
+                  if b.type == tri and t[0] == tag]
+        corners = np.concatenate(blocks)[:, :3]
+        got = np.sort(back.points[corners][:, :, :2].reshape(-1, 6), axis=0)
         want = mesh.p.T[mesh.t[:, tagged.elements(name)].T] / tagged.unit_m
         assert np.allclose(got, np.sort(want.reshape(-1, 6), axis=0))
     for side in ("left", "right", "bottom", "top"):
         tag = back.field_data[side][0]
         lines = [b.data for b, t in zip(back.cells, physical, strict=True)
-                 if b.type == "line" and t[0] == tag]
+                 if b.type == line and t[0] == tag]
         assert sum(len(x) for x in lines) == len(mesh.boundaries[side])
     x = back.points[np.concatenate(
         [b.data for b, t in zip(back.cells, physical, strict=True)
@@ -72,7 +77,8 @@ def test_gmsh_reads_the_physical_groups(tagged, tmp_path):
         gmsh.option.setNumber("General.Terminal", 0)
         gmsh.open(str(path))
         groups = {gmsh.model.getPhysicalName(d, t): d for d, t in gmsh.model.getPhysicalGroups()}
-        tags, _ = gmsh.model.mesh.getElementsByType(2)
+        kind = 9 if tagged.mesh.p.shape[1] > tagged.mesh.t.max() + 1 else 2
+        tags, _ = gmsh.model.mesh.getElementsByType(kind)
     finally:
         gmsh.finalize()
     assert groups == {**{n: 2 for n in (*tagged.regions, "domain")},
