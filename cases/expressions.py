@@ -338,7 +338,11 @@ def evaluate(value, key: str, params: Mapping | None = None):
         raise _error(key, "empty value")
     tree, literals = parse(value, key, params)
     try:
-        return _Evaluator(key, params, literals).visit(tree.body)
+        result = _Evaluator(key, params, literals).visit(tree.body)
+        magnitude = result.magnitude if isinstance(result, Quantity) else result
+        if not math.isfinite(float(magnitude)):
+            raise _error(key, f"{value!r} is not a finite number ({float(magnitude)})")
+        return result
     except CaseError:
         raise
     except pint.errors.DimensionalityError as exc:

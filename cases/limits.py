@@ -32,6 +32,11 @@ MAX_SWEEP_POINTS = 10_000
 #: Nesting depth of a case file's arrays and tables.
 MAX_NESTING = 50
 
+#: Largest size of a source quantity (SI): far beyond any induction equipment, so that
+#: products of them (power, energy, force) stay finite.
+MAX_MAGNITUDE = {"current": 1e12, "voltage": 1e12, "flux_density": 1e6, "potential": 1e12,
+                 "resistance": 1e12}
+
 LIMITS = {
     "repeat count": MAX_REPEAT, "values of a list or range": MAX_VALUES,
     "transient steps": MAX_STEPS, "line samples": MAX_SAMPLES,

@@ -60,9 +60,10 @@ def is_whorl_folder(folder: Path) -> bool:
     return (Path(folder) / MARKER).is_file()
 
 
-def check_replaceable(final: Path, key: str = "output.folder") -> None:
+def check_replaceable(final: Path, key: str = "output.folder", owned: bool = False) -> None:
     """Refuse (:class:`CaseError`) unless ``final`` is absent or a folder whorl wrote,
-    holding no sweep."""
+    holding no sweep (``owned``: the place is whorl's own, such as a sweep's point
+    folders, so a folder there needs no marker)."""
     final = Path(final)
     hint = ("choose another [output] folder or [case] name (or --out), or move the "
             "existing one away")
@@ -76,10 +77,14 @@ def check_replaceable(final: Path, key: str = "output.folder") -> None:
             raise CaseError(key, f"{final} holds the sweep of this case ({SWEEP_SUBFOLDER}/): "
                                  "a single run or mesh would replace it, so whorl refuses; "
                                  f"{hint}")
-        if not is_whorl_folder(final):
+        if not owned and not is_whorl_folder(final):
+            older = ((final / "results.json").exists() or (final / "mesh.msh").exists())
+            why = (" (it looks like the results of an earlier whorl, from before results "
+                   "folders were marked: remove it yourself if you no longer need it)"
+                   if older else "")
             raise CaseError(key, f"{final} exists and was not written by whorl (it has no "
                                  f"{MARKER} marker; output.folder / case.name point at it): "
-                                 f"whorl replaces only folders it wrote itself; {hint}")
+                                 f"whorl replaces only folders it wrote itself{why}; {hint}")
     except OSError as exc:
         raise CaseError(key, f"cannot inspect {final}: {_reason(exc)}") from None
 
@@ -128,16 +133,17 @@ def write_marker(folder: Path, kind: str) -> None:
 
 
 @contextmanager
-def staged_folder(final: Path, key: str = "output.folder", kind: str = "run"):
+def staged_folder(final: Path, key: str = "output.folder", kind: str = "run",
+                  owned: bool = False):
     """Yield a temporary folder beside ``final``; on success it replaces ``final``.
 
     ``final`` is checked with :func:`check_replaceable` before and again at the
-    end; a problem with the place (a file in the way, no permission, a name
-    the system refuses) is a :class:`CaseError` under ``key`` naming the
-    system's reason.
+    end (``owned``: see :func:`check_replaceable`); a problem with the place (a
+    file in the way, no permission, a name the system refuses) is a
+    :class:`CaseError` under ``key`` naming the system's reason.
     """
     final = Path(final)
-    check_replaceable(final, key)
+    check_replaceable(final, key, owned)
     try:
         final.parent.mkdir(parents=True, exist_ok=True)
         remove_stale_staging(final)
@@ -149,7 +155,7 @@ def staged_folder(final: Path, key: str = "output.folder", kind: str = "run"):
     try:
         yield tmp
         write_marker(tmp, kind)
-        check_replaceable(final, key)
+        check_replaceable(final, key, owned)
     except BaseException:
         shutil.rmtree(tmp, ignore_errors=True)
         raise

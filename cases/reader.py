@@ -14,6 +14,7 @@ from dataclasses import dataclass, field
 
 from whorl.cases.errors import CaseError
 from whorl.cases.expressions import evaluate
+from whorl.cases.limits import MAX_MAGNITUDE
 from whorl.cases.lines import LineIndex
 from whorl.cases.units import to_unit
 
@@ -106,9 +107,15 @@ class Table:
 
     def convert(self, raw, key: str, kind: str, geometry: bool, name) -> float:
         try:
-            return self.ctx.quantity(raw, key, kind, geometry)
+            value = self.ctx.quantity(raw, key, kind, geometry)
         except CaseError as exc:
             raise self.relined(exc, str(name)) from None
+        bound = MAX_MAGNITUDE.get(kind)
+        if bound is not None and abs(value) > bound:
+            raise self.relined(CaseError(key, f"{value:g} is beyond the physical range of "
+                                              f"a {kind.replace('_', ' ')} (at most "
+                                              f"{bound:g} in size, SI)"), str(name))
+        return value
 
     def positive(self, name, kind: str, default=MISSING, geometry=False, zero=False) -> float:
         """A quantity that must be > 0 (or >= 0 with ``zero``)."""

@@ -251,7 +251,7 @@ def make_sweep_folder(folder: Path, key: str) -> None:
                                  "[case] name")
         fresh = not folder.exists()
         folder.mkdir(parents=True, exist_ok=True)
-        if fresh:
+        if fresh or (not is_whorl_folder(folder) and (folder / STORE_NAME).exists()):
             write_marker(folder, "sweep")
     except (OSError, ValueError) as exc:
         reason = exc.strerror if isinstance(exc, OSError) and exc.strerror else str(exc)

@@ -110,7 +110,7 @@ def point_folder(folder: Path, number: int) -> Path:
 def write_point(folder: Path, number: int, files: dict, case_text: str) -> Path:
     """Write a point's files (name -> bytes) to its folder, all at once."""
     final = point_folder(folder, number)
-    with staged_folder(final, "sweep", "point") as tmp:
+    with staged_folder(final, "sweep", "point", owned=True) as tmp:  # points/ is the sweep's
         for name, data in files.items():
             target = tmp / name
             target.parent.mkdir(parents=True, exist_ok=True)

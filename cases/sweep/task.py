@@ -21,6 +21,7 @@ from pathlib import Path
 
 from whorl.cases.errors import CaseError
 from whorl.cases.limits import check_shapes
+from whorl.cases.meshing import DEFAULT_MESH_TIME_LIMIT, mesh_with_limit
 from whorl.cases.run import solve_case, write_results
 from whorl.cases.sweep.summary import main_numbers
 from whorl.meshes.build import build_mesh
@@ -68,7 +69,12 @@ def execute(payload: dict) -> dict:
                 raise MeshError(f"found before meshing: {exc}") from None
             say("meshing")
             with _MESH_LOCK:
-                mesh = built = build_mesh(payload["geometry"], progress=say)
+                if threading.current_thread() is threading.main_thread():
+                    # a worker process of its own: mesh in a child under the time limit
+                    mesh = built = mesh_with_limit(payload["geometry"], say,
+                                                   DEFAULT_MESH_TIME_LIMIT)
+                else:  # a thread of a cluster worker: no fork there
+                    mesh = built = build_mesh(payload["geometry"], progress=say)
             out.update(meshed=True, mesh=built)
         else:
             say("mesh from the sweep's mesh cache")

@@ -155,3 +155,17 @@ def test_a_read_only_place_is_exit_2(tmp_path, capsys):
         assert "permission denied" in capsys.readouterr().err.lower()
     finally:
         locked.chmod(0o700)
+
+
+def test_a_place_the_system_refuses_is_exit_2_even_for_root(tmp_path, capsys, monkeypatch):
+    # file permissions do not apply to root: the refusal is simulated where it happens
+    import tempfile
+
+    def refused(*args, **kwargs):
+        raise PermissionError(13, "Permission denied")
+
+    path = _plain(tmp_path)
+    monkeypatch.setattr(tempfile, "mkdtemp", refused)
+    assert main(["run", str(path), "-q"]) == 2
+    err = capsys.readouterr().err
+    assert "output.folder" in err and "Permission denied" in err

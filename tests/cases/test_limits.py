@@ -201,3 +201,18 @@ def test_check_time_grows_linearly_with_parameters():
     timed(50)
     small, large = timed(400), timed(1600)
     assert large < 8 * small + 0.5  # quadratic would be 16 times
+
+
+@pytest.mark.parametrize("old, new, key", [
+    ('current = "100 A"', 'current = "1e300 A"', "source.coil.current"),
+    ('gap = "3 mm"', 'gap = "1e400 mm"', "parameters.gap"),
+])
+def test_source_values_and_parameters_are_finite_and_in_range(old, new, key):
+    with pytest.raises(CaseError) as info:
+        parse_case(_case(old, new))
+    assert info.value.key.startswith(key)
+
+
+def test_a_mesher_that_dies_is_a_mesh_error_not_a_hang():
+    with pytest.raises(MeshError, match="meshing failed"):
+        mesh_with_limit(None, time_limit=60)  # the child fails at once and says why
