@@ -160,7 +160,7 @@ def _build(text: str, path, overrides: dict) -> Case:
     index.check_duplicates()
     doc = _toml(text)
     _format(doc, index)
-    ctx = Context(index)
+    ctx = Context(index, folder=Path(path).resolve().parent if path else None)
     ctx.params = _parameters(doc, index, overrides)
 
     info = read_case(_section(ctx, doc, "case", {}), Path(path).stem if path else "case")

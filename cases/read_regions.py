@@ -7,6 +7,7 @@ from dataclasses import dataclass
 from whorl.cases.errors import CaseError
 from whorl.cases.limits import MAX_REPEAT, check_count
 from whorl.cases.names import MAX_NAME, valid_name
+from whorl.cases.read_drawing import DRAWING_KEYS, read_drawn
 from whorl.cases.read_shapes import REQUIRED, SHAPE_KEYS, read_shape
 from whorl.cases.reader import Context, Table, array_of_tables
 from whorl.meshes.geometry import RegionSpec
@@ -44,14 +45,16 @@ def read_regions(ctx: Context, document: dict) -> list[RegionEntry]:
 
 
 def _read_one(ctx: Context, table: Table) -> list[RegionEntry]:
-    shape_name = table.string("shape", choices=tuple(SHAPE_KEYS))
-    extra = SHAPE_KEYS.get(shape_name, set())
-    others = set().union(*SHAPE_KEYS.values()) - extra
+    keys = {**SHAPE_KEYS, "drawing": DRAWING_KEYS}
+    shape_name = table.string("shape", choices=tuple(keys))
+    extra = keys[shape_name]
+    others = set().union(*keys.values()) - extra
     for key in table.data:
         if key in others:
             raise table.error(key, f"{key!r} does not belong to a {shape_name} (it takes "
                                    f"{', '.join(sorted(extra))})")
-    table.allow(COMMON | extra, required=("name", "material") + REQUIRED[shape_name])
+    required = REQUIRED.get(shape_name, ("file", "layer"))
+    table.allow(COMMON | extra, required=("name", "material") + required)
     name = table.string("name")
     if not valid_name(name) or name in RESERVED:
         raise table.error("name", f"{name!r} is not a valid region name: use letters, digits, "
@@ -59,12 +62,23 @@ def _read_one(ctx: Context, table: Table) -> list[RegionEntry]:
                                   "characters")
     material = table.string("material")
     mesh_size = table.positive("mesh_size", "length", None, geometry=True)
-    shape = read_shape(table, shape_name, ctx.axisymmetric)
-    if not table.has("repeat"):
-        copies = [(name, shape)]
+    if shape_name == "drawing":
+        if table.has("subtract"):
+            raise table.error("subtract", "a drawing's holes are drawn on its layer (closed "
+                                          "curves inside the outline)")
+        drawn = read_drawn(table, ctx.axisymmetric)
+        named = [(name, drawn[0])] if len(drawn) == 1 else [
+            (f"{name}.{k + 1}", s) for k, s in enumerate(drawn)]
     else:
+        named = [(name, read_shape(table, shape_name, ctx.axisymmetric))]
+    if not table.has("repeat"):
+        copies = named
+    else:
+        if len(named) > 1:
+            raise table.error("repeat", f"the drawing holds {len(named)} outlines: repeat "
+                                        "works on a drawing of one outline")
         count, step = _repeat(table)
-        copies = [(f"{name}.{k + 1}", shifted(shape, k * step[0], k * step[1]))
+        copies = [(f"{name}.{k + 1}", shifted(named[0][1], k * step[0], k * step[1]))
                   for k in range(count)]
     out = []
     for copy_name, copy_shape in copies:

@@ -11,6 +11,7 @@ scan finds it, the line. Positions in key paths count from 1.
 from __future__ import annotations
 
 from dataclasses import dataclass, field
+from pathlib import Path
 
 from whorl.cases.errors import CaseError
 from whorl.cases.expressions import evaluate
@@ -30,6 +31,7 @@ class Context:
     length_unit: str = "mm"
     unit_m: float = 1e-3
     axisymmetric: bool = False
+    folder: Path | None = None  # the case file's folder (data files are read from it)
 
     def quantity(self, raw, key: str, kind: str, geometry: bool = False) -> float:
         """Evaluate ``raw`` and convert it to ``kind`` (length unit if ``geometry``)."""
