@@ -19,7 +19,9 @@ Before :func:`ast.parse`, a pre-pass over Python's tokens turns every run
 ``NUMBER UNIT`` into one literal. The unit run starts with the name directly
 after the number and continues through ``*`` or ``/`` followed by another
 unit name, and through ``**`` followed by an (optionally negative) integer;
-``%`` directly after a number is percent. A name counts as a unit only if it
+``%`` directly after a number is percent. A parenthesised group of units
+after ``*`` or ``/`` belongs to the run (``45 W/(m*K)``), and ``^`` is a power
+inside a unit (``7850 kg/m^3``). A name counts as a unit only if it
 is **not** a parameter name, not a function or ``pi``, and pint knows it:
 *parameter names win*. So with a parameter ``turns``, ``"10 A/turns"`` is
 10 A divided by the parameter, and ``"2 turns"`` is an error (write
@@ -117,7 +119,9 @@ def _unit_run(toks, i, params) -> int:
         op, nxt = toks[j].string, toks[j + 1]
         if op in ("*", "/") and _unit_name(nxt, params):
             j += 2
-        elif op == "**":
+        elif op in ("*", "/") and nxt.string == "(" and _unit_group(toks, j + 1, params):
+            j = _unit_group(toks, j + 1, params)
+        elif op in ("**", "^"):
             k = j + 2 if nxt.string == "-" else j + 1
             if k < len(toks) and toks[k].type == tokenize.NUMBER:
                 j = k + 1
@@ -126,6 +130,18 @@ def _unit_run(toks, i, params) -> int:
         else:
             break
     return j
+
+
+def _unit_group(toks, i, params) -> int:
+    """Index just past a parenthesised group of units such as ``(m*K)`` or ``(m^2*K)``
+    starting at ``toks[i]`` (the ``(``), or 0 when it is not one."""
+    j = i + 1
+    if j >= len(toks) or not _unit_name(toks[j], params):
+        return 0
+    end = _unit_run(toks, j, params)
+    if end < len(toks) and toks[end].type == tokenize.OP and toks[end].string == ")":
+        return end + 1
+    return 0
 
 
 def prepare(text: str, key: str, params=()) -> tuple[str, dict]:

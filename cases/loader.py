@@ -25,12 +25,15 @@ from whorl.cases.limits import MAX_NESTING, MAX_SWEEP_POINTS, check_shapes, nest
 from whorl.cases.lines import LineIndex
 from whorl.cases.parameters import resolve, si_values
 from whorl.cases.read_domain import check_regions_inside, read_domain
+from whorl.cases.read_heated import resolve_heated
 from whorl.cases.read_materials import lookup, read_materials
 from whorl.cases.read_model import read_case, read_mesh, read_model
 from whorl.cases.read_outputs import read_lines, read_loops, read_output, read_points
 from whorl.cases.read_regions import read_regions
 from whorl.cases.read_sources import read_shorted, read_sources
 from whorl.cases.read_study import read_study
+from whorl.cases.read_supply import read_supplies
+from whorl.cases.read_surfaces import read_surfaces
 from whorl.cases.read_sweep import read_sweep, sweep_size
 from whorl.cases.reader import Context, Table
 from whorl.cases.spec import Case
@@ -40,7 +43,7 @@ from whorl.solver.sources import Stranded
 
 FORMAT = 1
 TOP_KEYS = ("format", "case", "model", "mesh", "parameters", "material", "region", "domain",
-            "source", "shorted", "study", "loop", "line", "point", "output", "sweep")
+            "source", "shorted", "study", "loop", "line", "point", "output", "sweep", "surface")
 
 
 def load_case(path, overrides=None, max_points: int | None = MAX_SWEEP_POINTS) -> Case:
@@ -167,9 +170,10 @@ def _build(text: str, path, overrides: dict) -> Case:
     model = read_model(_section(ctx, doc, "model", {}))
     ctx.length_unit, ctx.unit_m = model.length_unit, model.unit_m
     ctx.axisymmetric = model.axisymmetric
+    ctx.temperature_k = model.temperature_k
     options = read_mesh(_section(ctx, doc, "mesh"), model.order)
 
-    defined = read_materials(ctx, doc.get("material"))
+    defined = read_materials(ctx, doc.get("material"), model.temperature_k)
     entries = read_regions(ctx, doc)
     region_names = [e.spec.name for e in entries]
     domain_table = _section(ctx, doc, "domain", {})
@@ -193,8 +197,17 @@ def _build(text: str, path, overrides: dict) -> Case:
     def conductivity(region: str) -> float:
         return materials[region_material[region]].conductivity
 
+    heating = study.kind == "heating"
     sources, waveforms = read_sources(ctx, doc, region_names, conductivity,
-                                      study.kind == "transient")
+                                      study.kind == "transient", heating)
+    supplies = read_supplies(ctx, doc) if heating else {}
+    if heating:
+        study = resolve_heated(ctx, _section(ctx, doc, "study"), study, region_names,
+                               region_material, materials, sources, defined)
+    region_materials = {r: materials[region_material[r]] for r in region_names}
+    surfaces = read_surfaces(ctx, doc, region_names,
+                             study.heating.heated if heating else (), region_materials,
+                             heating)
     _check_applied(ctx, doc, domain.boundary, sources)
     _check_dc_windings(ctx, sources, study)
     shorted = read_shorted(ctx, doc, region_names, conductivity, sources)
@@ -215,6 +228,7 @@ def _build(text: str, path, overrides: dict) -> Case:
         output=read_output(_section(ctx, doc, "output")),
         sweep=read_sweep(_section(ctx, doc, "sweep"), list(ctx.params)),
         path=Path(path) if path else None, document=document, text=text,
+        surfaces=surfaces, supplies=supplies, temperature_k=model.temperature_k,
     )
 
 

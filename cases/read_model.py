@@ -33,6 +33,7 @@ class ModelInfo:
     depth_m: float
     order: int
     solver: str = "auto"
+    temperature_k: float = 293.15  # where non-heating studies take table values
 
     @property
     def axisymmetric(self) -> bool:
@@ -53,12 +54,14 @@ def read_case(table: Table, default_name: str) -> CaseInfo:
 def read_model(table: Table) -> ModelInfo:
     """``[model]``: ``geometry`` (default planar), ``length_unit`` (default mm),
     ``depth`` (planar only, SI metres when bare; default 1 m), ``order`` (1 or 2, default 2),
-    ``solver`` (a linear solver backend by name, default ``"auto"``: the fastest installed).
+    ``solver`` (a linear solver backend by name, default ``"auto"``: the fastest installed),
+    ``temperature`` (default 20 degC: where temperature tables are read outside heating
+    studies).
 
     ``length_unit`` is read first so that ``depth`` may be written as an
     expression of parameters.
     """
-    table.allow({"geometry", "length_unit", "depth", "order", "solver"})
+    table.allow({"geometry", "length_unit", "depth", "order", "solver", "temperature"})
     geometry = table.string("geometry", "planar", GEOMETRIES)
     unit = table.string("length_unit", "mm")
     try:
@@ -77,7 +80,10 @@ def read_model(table: Table) -> ModelInfo:
     if solver not in known:
         raise table.error("solver", f"unknown linear solver {solver!r}; known: "
                                     f"{', '.join(known)}")
-    return ModelInfo(geometry, unit, unit_m, depth, order, solver)
+    temperature = table.value("temperature", "temperature", 293.15)
+    if temperature < 0:
+        raise table.error("temperature", f"below absolute zero ({temperature:g} K)")
+    return ModelInfo(geometry, unit, unit_m, depth, order, solver, temperature)
 
 
 def read_mesh(table: Table | None, order: int) -> MeshOptions:

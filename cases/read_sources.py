@@ -33,12 +33,14 @@ _KEYS = {
                                   "capacitance", "initial_voltage"},
     ("applied-field", True): {"name", "kind", "flux_density"},
 }
+HEATING_KEYS = {"power", "max_current", "max_voltage", "on"}
+"""Keys a stranded or massive source takes in a heating study (see read_supply)."""
 WAVEFORM_KEYS = {"step": {"value"}, "sine": {"peak", "frequency", "phase"},
                  "ramp": {"value", "rise"}, "table": {"points"}}
 
 
 def read_sources(ctx: Context, document: dict, regions: list[str], conductivity,
-                 transient: bool):
+                 transient: bool, heating: bool = False):
     """Sources in file order and the transient waveforms by source name.
 
     Parameters
@@ -47,6 +49,9 @@ def read_sources(ctx: Context, document: dict, regions: list[str], conductivity,
         ``conductivity(region) -> S/m``; massive sources need conductors.
     transient : bool
         True for a transient study (sources take ``waveform``).
+    heating : bool
+        True for a heating study: sources may also take ``power``, ``max_current``,
+        ``max_voltage`` and ``on`` (read by :mod:`.read_supply`).
 
     Returns
     -------
@@ -60,7 +65,7 @@ def read_sources(ctx: Context, document: dict, regions: list[str], conductivity,
         name = raw.data.get("name")
         path = f"source.{name}" if isinstance(name, str) and name else f"source[{i}]"
         table = Table(ctx, raw.data, path, raw.block)
-        table.allow(set().union(*_KEYS.values()), required=("name", "kind"))
+        table.allow(set().union(*_KEYS.values()) | HEATING_KEYS, required=("name", "kind"))
         name = table.string("name")
         if not valid_name(name):
             raise table.error("name", f"{name!r} is not a valid source name")
@@ -68,7 +73,12 @@ def read_sources(ctx: Context, document: dict, regions: list[str], conductivity,
             raise table.error("name", f"source name {name!r} is used twice")
         kind = table.string("kind", choices=KINDS)
         allowed = _KEYS[(kind, transient)]
+        if heating and kind != "applied-field":
+            allowed = allowed | HEATING_KEYS
         for key in table.data:
+            if key in HEATING_KEYS and not heating:
+                raise table.error(key, f"{key!r} belongs to heating studies only "
+                                       "([study] kind = \"heating\")")
             if key not in allowed:
                 study = "transient" if transient else "harmonic and static"
                 raise table.error(key, f"{key!r} does not belong to a {kind} source in a "
@@ -76,7 +86,8 @@ def read_sources(ctx: Context, document: dict, regions: list[str], conductivity,
         if kind == "applied-field":
             sources.append(_applied(ctx, table, name, transient))
             continue
-        source, waveform = _driven(ctx, table, name, kind, regions, conductivity, transient)
+        source, waveform = _driven(ctx, table, name, kind, regions, conductivity, transient,
+                                   heating)
         for key, names in (("regions", source.regions), ("return_regions",
                                                          source.return_regions)):
             for region in names:
@@ -100,7 +111,7 @@ def _phasor(table: Table, key: str) -> complex:
     return complex(value) if phase == 0 else value * cmath.exp(1j * math.radians(phase))
 
 
-def _driven(ctx, table, name, kind, regions, conductivity, transient):
+def _driven(ctx, table, name, kind, regions, conductivity, transient, heating=False):
     listed = expand(table.names("regions"), regions, table, "regions")
     back = ()
     if table.has("return_regions"):
@@ -130,9 +141,15 @@ def _driven(ctx, table, name, kind, regions, conductivity, transient):
                 raise table.error("initial_voltage", "initial_voltage goes with capacitance")
             drive = table.string("drive", "current", ("current", "voltage"))
             waveform = read_waveform(table.table("waveform"), drive)
+    elif heating and table.has("power"):
+        for key in ("current", "voltage"):
+            if table.has(key):
+                raise table.error(key, "give one of current, voltage and power")
+        current = 1.0 + 0j  # scaled at every field solution to the power asked
     else:
         if table.has("current") == table.has("voltage"):
-            raise table.error("current", "give exactly one of current and voltage")
+            raise table.error("current", "give exactly one of current and voltage"
+                              + (" (or power)" if heating else ""))
         if table.has("current"):
             current = _phasor(table, "current")
         else:

@@ -32,6 +32,7 @@ class Context:
     unit_m: float = 1e-3
     axisymmetric: bool = False
     folder: Path | None = None  # the case file's folder (data files are read from it)
+    temperature_k: float = 293.15  # [model] temperature: where tables are read
 
     def quantity(self, raw, key: str, kind: str, geometry: bool = False) -> float:
         """Evaluate ``raw`` and convert it to ``kind`` (length unit if ``geometry``)."""

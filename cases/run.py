@@ -17,6 +17,7 @@ from whorl import __version__
 from whorl.cases import model
 from whorl.cases.meshing import DEFAULT_MESH_TIME_LIMIT, mesh_with_limit
 from whorl.cases.output import staged_folder
+from whorl.cases.run_heating import solve_heating, write_heating_files
 from whorl.cases.run_transient import series_tables, solve_transient
 from whorl.postprocess.balance import TOLERANCE as BALANCE_TOLERANCE
 from whorl.postprocess.frequency_response import (
@@ -113,7 +114,17 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None,
     for text in overlaps:
         log.warning(text)
     body = {}
-    if case.study.kind == "transient":
+    heating_info = None
+    if case.study.kind == "heating":
+        body["heating"], heating_info = solve_heating(case, problem, say)
+        solutions, system = [], heating_info["system"]
+        info = {"assemble_s": 0.0, "solve_s": heating_info["solve_s"],
+                "backend": heating_info_backend(case), "unknowns": 0}
+        if system is not None:
+            info["unknowns"] = int(system.size - system.fixed.size)
+        timing["postprocess"] = 0.0
+        body["warnings"] = heating_warnings(body["heating"])
+    elif case.study.kind == "transient":
         series, files, info = solve_transient(case, problem, loops, say, folder)
         solutions, system = [], info["system"]
         body["series"] = series
@@ -154,7 +165,7 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None,
                  "length_unit": case.length_unit, "study": case.study.kind},
         "parameters": dict(case.parameters),
         "mesh": {"nodes": int(mesh.mesh.p.shape[1]), "elements": int(mesh.mesh.t.shape[1]),
-                 "dofs": int(system.size), "order": case.order,
+                 "dofs": int(system.size) if system is not None else 0, "order": case.order,
                  "quality_min": mesh.info.get("quality_min")},
         "timing_s": timing,
         "solver": {"backend": info["backend"], "unknowns": info["unknowns"],
@@ -162,7 +173,40 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None,
         **body,
         "caution": CAUTION,
     }
+    if heating_info is not None:
+        results["caution"] = CAUTION + " " + HEATING_CAUTION
+        results["_heating"] = heating_info  # taken out (not written) by write_results
     return results, solutions, mesh
+
+
+HEATING_CAUTION = (
+    "A heating run predicts temperatures of hot parts: parts, fixtures and quench "
+    "water stay hot long after the power stops, quench spray can scald, and the supply "
+    "carries high current. Temperatures depend on material data given as typical values."
+)
+
+
+def heating_info_backend(case) -> str:
+    from whorl.solver import linalg
+
+    return linalg.choose(case.solver)[0]
+
+
+def heating_warnings(record) -> list[str]:
+    """What to know about a heating run: energy balance, supply limits."""
+    out = []
+    bal = record["energy"]["balance"]
+    if abs(bal) > 0.01:
+        out.append(f"the heating energy balance is off by {100 * bal:.2f} % (induced heat "
+                   "against stored heat and surface loss): reduce step or field_update")
+    for name, rec in record["sources"].items():
+        lim = rec.get("supply_limit")
+        if lim:
+            out.append(f"source {name}: {lim['cap']} binds from {lim['from_s']:g} s; the "
+                       f"power falls short by up to {lim['max_shortfall_w']:.4g} W")
+    for text in out:
+        log.warning(text)
+    return out
 
 
 def _suffix(solutions, k) -> str:
@@ -204,6 +248,7 @@ def write_pictures(case, results, solutions, folder: Path, lines: dict) -> tuple
 def write_results(case, results, solutions, folder: Path) -> list[Path]:
     """Write results.json, regions.csv, line tables, fields, plots, the report and the
     case into ``folder``."""
+    heating_info = results.pop("_heating", None)
     files = [folder / f for f in results.get("snapshots", ())]
     lines = {}
     path = folder / "results.json"
@@ -222,7 +267,7 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
                     ["source", "connection", "capacitance_f", "frequency_hz", "note"],
                     [[n, r["connection"], r["capacitance_f"], r["frequency_hz"], r["note"]]
                      for n, r in results["resonance"].items()])
-    for line in case.lines:
+    for line in case.lines if "heating" not in results else ():
         header, rows = None, []
         for s in solutions:
             h, r = line_rows(s, [v * case.unit_m for v in line.start],
@@ -234,6 +279,11 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
         lines[line.name] = (header, rows)
     pictures, images = write_pictures(case, results, solutions, folder, lines)
     files += pictures
+    if "heating" in results:
+        if heating_info is not None:
+            more, shots, tables = write_heating_files(case, results, heating_info, folder)
+            files += more
+            images.update(shots)
     if "series" in results:
         files += series_tables(results["series"], folder)
         if case.output.plots:

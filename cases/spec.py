@@ -39,8 +39,21 @@ class PointSpec:
 
 
 @dataclass(frozen=True)
+class HeatingSpec:
+    """The heating keys of ``[study]`` (temperatures in K). ``heated`` is None for the
+    default (every conductor in no source), resolved by the loader."""
+
+    initial_k: float = 293.15
+    heated: tuple[str, ...] | None = None
+    field_update_k: float = 20.0
+    hardening_k: float | None = None
+    temperatures_k: tuple[float, ...] = ()  # times to reach these are reported
+
+
+@dataclass(frozen=True)
 class StudySpec:
-    """``kind`` is harmonic, static or transient; ``frequencies`` in Hz (static: (0.0,))."""
+    """``kind`` is harmonic, static, transient or heating; ``frequencies`` in Hz
+    (static: (0.0,)); a heating study has one frequency and ``heating``."""
 
     kind: str
     frequencies: tuple[float, ...] = ()
@@ -52,6 +65,7 @@ class StudySpec:
     reduced_tolerance: float = 1e-6  # relative, on impedances and region losses
     tank_capacitance: float | None = None  # F: resonance with the source's tank capacitor
     tank_connection: str = "parallel"      # "series" or "parallel"
+    heating: HeatingSpec | None = None
 
 
 @dataclass(frozen=True)
@@ -106,6 +120,9 @@ class Case:
     document: dict = field(default_factory=dict)
     solver: str = "auto"  # linear solver backend by name (whorl.solver.linalg)
     text: str | None = None  # the case file's text as read (what was solved)
+    surfaces: tuple = ()  # [[surface]] of a heating study (solver Surface objects)
+    supplies: dict = field(default_factory=dict)  # heating: source name -> Supply
+    temperature_k: float = 293.15  # [model] temperature
 
     @property
     def axisymmetric(self) -> bool:

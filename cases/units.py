@@ -50,11 +50,20 @@ KINDS: dict[str, Kind] = {
     "time": Kind("time", "s", "50 us"),
     "capacitance": Kind("capacitance", "F", "2.2 uF"),
     "potential": Kind("vector potential", "Wb/m", "1e-3 Wb/m"),
+    "temperature": Kind("temperature", "K", "850 degC"),
+    "temperature_change": Kind("temperature change", "K", "20 K"),
+    "thermal_conductivity": Kind("thermal conductivity", "W/(m*K)", "45 W/(m*K)"),
+    "density": Kind("density", "kg/m**3", "7850 kg/m^3"),
+    "specific_heat": Kind("specific heat", "J/(kg*K)", "460 J/(kg*K)"),
+    "heat_transfer": Kind("heat transfer coefficient", "W/(m**2*K)", "15 W/(m^2*K)"),
+    "power": Kind("power", "W", "60 kW"),
 }
 """Kinds of quantity a case-file key may expect, with the unit values are converted to.
 
 Angles are kept in degrees (the case file's unit for ``phase``); every other
-kind except geometry lengths is SI.
+kind except geometry lengths is SI. Temperatures (``degC``, ``degF``, ``K``) are
+converted to kelvin; a bare number is kelvin. A temperature *change* written in
+``degC`` or ``degF`` is a difference (``"15 degC"`` is 15 K).
 """
 
 
@@ -128,6 +137,9 @@ def to_unit(value, kind: str, key: str, unit: str | None = None) -> float:
                              f"got {value!r}")
     if isinstance(value, int | float):
         number = float(value)
+    elif isinstance(value, Quantity) and kind == "temperature_change" and not value.unitless \
+            and value.units in (UREG.degC, UREG.degF):
+        number = float(value.magnitude) * (1.0 if value.units == UREG.degC else 5.0 / 9.0)
     elif isinstance(value, Quantity):
         number = _convert(value, kind, spec, target, key)
     else:

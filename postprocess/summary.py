@@ -95,6 +95,42 @@ def response_summary(results: dict) -> list[str]:
     return out
 
 
+def heating_summary(h: dict) -> list[str]:
+    """Final and peak temperatures, time to temperature, hardened depth, energy."""
+    t = h["time_s"]
+    out = ["", f"heating: {len(t) - 1} steps to {_eng(t[-1], 's')}, "
+               f"{h['field_solutions']} field solutions"]
+    for name, r in h["regions"].items():
+        if "max_temperature_c" in r:
+            out.append(f"  region {name}: at the end {r['min_temperature_c'][-1]:.0f} to "
+                       f"{r['max_temperature_c'][-1]:.0f} degC (mean "
+                       f"{r['mean_temperature_c'][-1]:.0f}), peak {r['peak_temperature_c']:.0f} "
+                       "degC")
+    for name, p in h["points"].items():
+        if p.get("inside_heated"):
+            reach = ", ".join(f"{k} degC at {'-' if v is None else f'{v:.3g} s'}"
+                              for k, v in p.get("time_to_temperature_s", {}).items())
+            out.append(f"  point {name}: {p['temperature_c'][-1]:.0f} degC at the end, peak "
+                       f"{p['peak_temperature_c']:.0f} degC" + (f"; reaches {reach}" if reach
+                                                                 else ""))
+    for name, d in h.get("hardened_depth", {}).items():
+        for key, v in d.items():
+            unit = key.removeprefix("depth_")
+            out.append(f"  line {name}: hardened depth "
+                       f"{'none' if v is None else f'{v:.3g} {unit}'} (estimate, no kinetics)")
+    for name, s in h["sources"].items():
+        on = [k for k, p in enumerate(s["power_w"]) if p > 0]
+        if on:
+            out.append(f"  source {name}: power {_eng(s['power_w'][on[0]], 'W')} at the start, "
+                       f"{_eng(s['power_w'][on[-1]], 'W')} at the end of heating; current "
+                       f"{_eng(s['current_a'][on[0]], 'A')} to {_eng(s['current_a'][on[-1]], 'A')}")
+    e = h["energy"]
+    out.append(f"  energy: induced {_eng(e['induced_j'], 'J')}, stored "
+               f"{_eng(e['stored_j'], 'J')}, lost at surfaces {_eng(e['surface_loss_j'], 'J')} "
+               f"(balance off by {100 * e['balance']:.3f} %)")
+    return out
+
+
 def summary_text(results: dict) -> str:
     """The main numbers of every solution of ``results`` (a results.json record)."""
     lines = []
@@ -107,6 +143,8 @@ def summary_text(results: dict) -> str:
                  f"{results['timing_s']['total']:.1f} s")
     if "series" in results:
         lines += series_summary(results["series"])
+    if "heating" in results:
+        lines += heating_summary(results["heating"])
     lines += response_summary(results)
     solutions = results.get("solutions", [])
     if len(solutions) > LONG_LIST:  # a frequency response: its ends and middle in detail

@@ -118,7 +118,7 @@ def _vector(v) -> np.ndarray:
     return np.column_stack([v[0], v[1], np.zeros(v.shape[1])])
 
 
-def write_fields_vtu(solution, path) -> os.PathLike:
+def write_fields_vtu(solution, path, extra_cells: dict | None = None) -> os.PathLike:
     """Write the fields of ``solution`` to the VTU file ``path`` (binary, zlib).
 
     Point data: ``A_re_Wb_per_m``, ``A_im_Wb_per_m`` (A_z or A_phi at the
@@ -135,6 +135,8 @@ def write_fields_vtu(solution, path) -> os.PathLike:
         A harmonic or static solution (RMS phasors).
     path : str or path-like
         The file to write; its folder must exist.
+    extra_cells : dict of str to ndarray, optional
+        More cell data, one value per mesh element (a heating run's temperatures).
 
     Returns
     -------
@@ -174,6 +176,8 @@ def write_fields_vtu(solution, path) -> os.PathLike:
         "mu_r": 1.0 / (MU0 * np.asarray(system.nu, dtype=float)[el]),
         "cell_volume_m3": means.volume[el],
     }
+    for key, values in (extra_cells or {}).items():
+        cell[key] = np.asarray(values, dtype=float)[el]
     out = meshio.Mesh(
         points, [("triangle", vis.triangles)],
         point_data={"A_re_Wb_per_m": a.real, "A_im_Wb_per_m": a.imag, "B_rms_T": b_rms,

@@ -1,10 +1,16 @@
-"""Material coefficients as piecewise-constant arrays over the elements."""
+"""Material coefficients as piecewise-constant arrays over the elements.
+
+When the problem carries ``element_temperature_k`` (a heating study), each
+element takes its material's conductivity and permeability at its own
+temperature, with the Curie transition applied (see :mod:`.tables`).
+"""
 
 from __future__ import annotations
 
 import numpy as np
 
 from whorl.solver.circuits import eddy_regions
+from whorl.solver.materials import MU0
 
 
 def element_regions(problem) -> dict[str, np.ndarray]:
@@ -18,12 +24,33 @@ def element_regions(problem) -> dict[str, np.ndarray]:
     return out
 
 
+def _temperature(problem, elems):
+    t = getattr(problem, "element_temperature_k", None)
+    return None if t is None else np.asarray(t)[elems]
+
+
 def reluctivity(problem) -> np.ndarray:
     """1/mu per element in m/H."""
     nu = np.empty(problem.mesh.mesh.t.shape[1])
     for name, elems in element_regions(problem).items():
-        nu[elems] = problem.materials[name].reluctivity
+        material = problem.materials[name]
+        t = _temperature(problem, elems)
+        if t is None:
+            nu[elems] = material.reluctivity
+        else:
+            nu[elems] = 1.0 / (MU0 * material.relative_permeability_at(t))
     return nu
+
+
+def magnetisation(problem) -> np.ndarray:
+    """Multiplier m in [0, 1] of the magnetisation per element (1 without temperatures):
+    B = mu0 H + m (B_material(H) - mu0 H)."""
+    m = np.ones(problem.mesh.mesh.t.shape[1])
+    for name, elems in element_regions(problem).items():
+        t = _temperature(problem, elems)
+        if t is not None:
+            m[elems] = problem.materials[name].magnetisation_at(t)
+    return m
 
 
 def eddy_conductivity(problem) -> np.ndarray:
@@ -32,5 +59,7 @@ def eddy_conductivity(problem) -> np.ndarray:
     eddy = set(eddy_regions(problem))
     for name, elems in element_regions(problem).items():
         if name in eddy:
-            sigma[elems] = problem.materials[name].conductivity
+            t = _temperature(problem, elems)
+            material = problem.materials[name]
+            sigma[elems] = material.conductivity if t is None else material.conductivity_at(t)
     return sigma

@@ -28,6 +28,10 @@ class Problem:
         Lagrange order of the elements, 1 or 2.
     shorted : tuple of Shorted
         Planar conductor groups joined at their ends.
+    element_temperature_k : ndarray, optional
+        Temperature of every element (K), set by a heating study: conductivity and
+        permeability are then evaluated per element from the materials' temperature
+        tables and Curie points. None: every material takes its plain values.
     """
 
     mesh: TaggedMesh
@@ -37,6 +41,7 @@ class Problem:
     depth_m: float = 1.0
     order: int = 2
     shorted: tuple = ()
+    element_temperature_k: object = None
 
     @property
     def axisymmetric(self) -> bool:

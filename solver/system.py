@@ -147,10 +147,9 @@ def assemble(problem, progress=None) -> System:
 
     def region_vectors(region):
         rb = system.region_basis(region)
-        s_r = problem.materials[region].conductivity
-        ones = np.ones(rb.nelems)
-        c = asm(form.voltage_coupling, rb, sigma=s_r * ones[:, None])
-        g = float(asm(form.voltage_conductance, rb, sigma=s_r * ones[:, None]))
+        s_r = sigma[problem.mesh.elements(region)]  # per element (temperature-dependent)
+        c = asm(form.voltage_coupling, rb, sigma=s_r[:, None])
+        g = float(asm(form.voltage_conductance, rb, sigma=s_r[:, None]))
         return c, g
 
     nf, nb, nd = basis.N, len(brs), len(driven)

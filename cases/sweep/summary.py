@@ -41,6 +41,28 @@ def main_numbers(record: dict) -> dict:
     return out
 
 
+def heating_numbers(heating: dict, length_unit: str = "mm") -> dict:
+    """The main numbers of a heating run (flat): per heated region the final and peak
+    temperature (degC); per point the final and peak temperature and the time to each
+    reported temperature; per line the hardened depth; the energy balance."""
+    out = {"field_solutions": heating["field_solutions"],
+           "induced_heat_j": heating["energy"]["induced_j"]}
+    for name, r in heating["regions"].items():
+        if "max_temperature_c" in r:
+            out[f"region.{name}.final_max_temperature_c"] = r["max_temperature_c"][-1]
+            out[f"region.{name}.final_mean_temperature_c"] = r["mean_temperature_c"][-1]
+            out[f"region.{name}.peak_temperature_c"] = r["peak_temperature_c"]
+    for name, p in heating["points"].items():
+        if p.get("inside_heated"):
+            out[f"point.{name}.final_temperature_c"] = p["temperature_c"][-1]
+            out[f"point.{name}.peak_temperature_c"] = p["peak_temperature_c"]
+            for t, s in p.get("time_to_temperature_s", {}).items():
+                out[f"point.{name}.time_to_{t}_c_s"] = s
+    for name, d in heating.get("hardened_depth", {}).items():
+        out[f"line.{name}.hardened_depth_{length_unit}"] = d.get(f"depth_{length_unit}")
+    return out
+
+
 def summary_rows(points: list[dict], axes: list[str]) -> tuple[list[str], list[dict]]:
     """Header and rows (dicts) of the summary table from the store's points."""
     params: list[str] = list(axes)

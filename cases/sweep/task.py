@@ -23,7 +23,7 @@ from whorl.cases.errors import CaseError
 from whorl.cases.limits import check_shapes
 from whorl.cases.meshing import DEFAULT_MESH_TIME_LIMIT, mesh_with_limit
 from whorl.cases.run import solve_case, write_results
-from whorl.cases.sweep.summary import main_numbers
+from whorl.cases.sweep.summary import heating_numbers, main_numbers
 from whorl.meshes.build import build_mesh
 from whorl.meshes.errors import MeshError
 from whorl.solver.errors import SolveError
@@ -105,10 +105,11 @@ def describe(exc: BaseException) -> str:
 
 def _point_files(number, case, results, solutions, payload, log, built) -> dict:
     wanted = list(case.study.frequencies)
-    picked = [i for i, s in enumerate(results["solutions"]) if s["frequency_hz"] in wanted]
+    picked = [i for i, s in enumerate(results.get("solutions", ())) if s["frequency_hz"] in wanted]
     record = dict(results)
     record["parameters"] = dict(case.parameters)
-    record["solutions"] = [results["solutions"][i] for i in picked]
+    if "solutions" in results:
+        record["solutions"] = [results["solutions"][i] for i in picked]
     record["sweep"] = {
         "point": number,
         "points_solved_together": sorted(payload["points"]),
@@ -124,5 +125,8 @@ def _point_files(number, case, results, solutions, payload, log, built) -> dict:
         for path in sorted(Path(tmp).rglob("*")):
             if path.is_file():
                 files[str(path.relative_to(tmp))] = path.read_bytes()
-    rows = [main_numbers(r) for r in record["solutions"]]
+    if "heating" in record:
+        rows = [heating_numbers(record["heating"], case.length_unit)]
+    else:
+        rows = [main_numbers(r) for r in record["solutions"]]
     return {"files": files, "rows": rows}
