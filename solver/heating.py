@@ -5,7 +5,8 @@
 2. Its time-averaged loss density heats the heated regions through implicit
    heat steps (:mod:`.heatstep`), held fixed until the next field solution.
 3. Solve the field again when any heated element's temperature has moved by
-   ``field_update`` since the last field solution, and at every switching time
+   ``field_update`` since the last field solution (unless no heated material's
+   conductivity or permeability depends on temperature), and at every switching time
    (a source's ``on`` window or a surface's window opens or closes). Steps land
    on every switching time; a step shrinks below ``step`` when temperatures
    move fast (more than half of ``field_update`` while a source is on, or more
@@ -173,6 +174,7 @@ def run_heating(problem, study: HeatingStudy, terminals, loss_density, region_lo
         full[domain.elements] = domain.element_temperature(t)
         return full
 
+    follows = any(problem.materials[r].electromagnetic_tables for r in study.heated)
     history = HeatingHistory(domain)
     t_now = np.full(domain.size, study.initial_k)
     history.peak_k = t_now.copy()
@@ -245,7 +247,7 @@ def run_heating(problem, study: HeatingStudy, terminals, loss_density, region_lo
         if t == upcoming:
             source, te_field = new_field(t, result.t)
             restart = True
-        elif on and np.abs(te - te_field).max() >= study.field_update_k:
+        elif on and follows and np.abs(te - te_field).max() >= study.field_update_k:
             source, te_field = new_field(t, result.t)
         if history.steps % 20 == 0:
             say(f"t = {t:.4g} s of {study.end_s:g} s, max {result.t.max() - 273.15:.0f} degC")

@@ -74,6 +74,12 @@ class Material:
         return magnetisation_factor(self.curie_temperature_k, temperature_k)
 
     @property
+    def electromagnetic_tables(self) -> bool:
+        """True if its conductivity or permeability changes with temperature."""
+        return (self.conductivity_table is not None or self.permeability_table is not None
+                or self.curie_temperature_k is not None)
+
+    @property
     def thermal_missing(self) -> list[str]:
         """Names of the thermal properties a heated region needs but this material lacks."""
         return [k for k in ("thermal_conductivity", "density", "specific_heat")
