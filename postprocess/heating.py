@@ -14,11 +14,12 @@ from __future__ import annotations
 import numpy as np
 from skfem import Basis
 
-from whorl.postprocess.circuits import source_results
+from whorl.postprocess.circuits import terminal_voltage
 from whorl.postprocess.fields import quadrature_fields
 from whorl.postprocess.probes import _locate, line_points
 from whorl.postprocess.regions import region_totals
 from whorl.solver.heating import energy_balance
+from whorl.solver.sources import Massive, Stranded
 
 KELVIN = 273.15
 
@@ -39,7 +40,9 @@ class FieldEvaluation:
         return self._q(solution).loss
 
     def terminals(self, solution):
-        return {n: (r.current_a, r.voltage_v) for n, r in source_results(solution).items()}
+        """Current and terminal voltage of every stranded and massive source."""
+        return {s.name: (solution.source_current(s), terminal_voltage(solution, s))
+                for s in solution.problem.sources if isinstance(s, Massive | Stranded)}
 
     def region_losses(self, solution):
         totals = region_totals(solution, self._q(solution))

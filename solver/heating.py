@@ -28,6 +28,7 @@ from whorl.solver import linalg
 from whorl.solver.errors import SolveError
 from whorl.solver.heat import heat_domain
 from whorl.solver.heatstep import HeatStepper, Surface
+from whorl.solver.reassembly import Reassembler, applies
 from whorl.solver.reduction import reduce
 from whorl.solver.solution import Solution
 from whorl.solver.supply import Supply, find_drive, with_drive
@@ -116,27 +117,53 @@ class FieldSolver:
         self.backend_name, factorize = linalg.choose(backend)
         self.factorize = linalg.session(factorize)
         self.previous = None
+        self.reassembler = None
+
+    def _system(self, problem, heated_elements):
+        if self.reassembler is None:
+            first = Reassembler(problem, heated_elements)
+            if not applies(first.base, self.study.heated):
+                self.reassembler = False
+            else:
+                self.reassembler = first
+                return first.base
+        if self.reassembler is False:
+            return assemble(problem)
+        return self.reassembler.system(problem)
 
     def solve(self, element_temperature_k, time_s: float, heated_elements) -> FieldRecord:
         t0 = time.perf_counter()
         problem = replace(self.problem, element_temperature_k=element_temperature_k)
-        system = assemble(problem)
+        system = self._system(problem, heated_elements)
         red = reduce(system)
         omega = 2 * np.pi * self.study.frequency_hz
         solve = self.factorize(red.matrix(1.0, 1j * omega))
+        linear = not np.any(red.fixed_values)  # superposition of one solution per source
+        unit = {}
+
+        def solve_one(drive):
+            x = red.expand(solve(red.rhs(system.rhs_for(drive), 1.0, 1j * omega)))
+            if not np.all(np.isfinite(x)):
+                raise SolveError("the field solution is not finite: the system is singular")
+            return x
 
         def solve_for(drive):
             sys_d = replace(system, problem=with_drive(problem, drive))
-            x = red.expand(solve(red.rhs(sys_d.rhs_for(drive), 1.0, 1j * omega)))
-            if not np.all(np.isfinite(x)):
-                raise SolveError("the field solution is not finite: the system is singular")
+            if not linear:
+                return Solution(sys_d, self.study.frequency_hz, solve_one(drive))
+            x = np.zeros(system.size, dtype=complex)
+            for name, d in drive.items():
+                if d != 0:
+                    if name not in unit:
+                        unit[name] = solve_one({name: 1.0 + 0j})
+                    x += d * unit[name]
             return Solution(sys_d, self.study.frequency_hz, x)
 
         state, solution = find_drive(solve_for, self.terminals, problem,
                                      self.study.supplies, time_s, self.previous)
         self.previous = {k: v for k, v in state.drive.items() if v != 0} or self.previous
         q = self.loss_density(solution)[heated_elements]
-        record = FieldRecord(time_s, solution, q, self.terminals(solution),
+        record = FieldRecord(time_s, solution, q, state.terminals,
                              self.region_losses(solution), state.capped, state.shortfall_w)
         record.seconds = time.perf_counter() - t0
         return record
@@ -165,7 +192,7 @@ def run_heating(problem, study: HeatingStudy, terminals, loss_density, region_lo
                          [s.regions for s in study.surfaces], problem.boundary,
                          problem.depth_m)
     materials = {r: problem.materials[r] for r in study.heated}
-    stepper = HeatStepper(domain, materials, study.surfaces)
+    stepper = HeatStepper(domain, materials, study.surfaces, backend=backend)
     fields = FieldSolver(problem, study, terminals, loss_density, region_losses, backend)
     n_el = tagged.mesh.t.shape[1]
 

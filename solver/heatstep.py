@@ -22,11 +22,11 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.sparse.linalg as spla
 
+from whorl.solver import linalg
 from whorl.solver.errors import SolveError
 from whorl.solver.heat import STEFAN_BOLTZMANN
-from whorl.solver.tables import at_temperature
+from whorl.solver.tables import PropertyTable, at_temperature
 
 log = logging.getLogger(__name__)
 
@@ -74,12 +74,16 @@ class HeatStepper:
     surfaces : list of Surface, in the order of ``domain.surfaces``
     """
 
-    def __init__(self, domain, materials, surfaces, tolerance_k: float = 1e-3,
-                 max_iterations: int = 30):
+    def __init__(self, domain, materials, surfaces, tolerance_k: float = 1e-2,
+                 max_iterations: int = 30, backend: str = "auto"):
         self.domain, self.surfaces = domain, list(surfaces)
         self.tolerance_k, self.max_iterations = tolerance_k, max_iterations
         self._materials = {name: materials[name] for name in set(domain.region)}
         self._masks = {name: domain.region == name for name in self._materials}
+        self._linear = None
+        # The linear-solver backend of the field, kept across steps (the sparsity
+        # pattern never changes, so a backend that can keeps its analysis).
+        self._factorize = linalg.session(linalg.choose(backend)[1])
 
     # -- properties ------------------------------------------------------------------
 
@@ -109,6 +113,21 @@ class HeatStepper:
                 out[sel] = at_temperature(self._materials[name].emissivity, tf[sel])
             return out
         return np.asarray(at_temperature(eps, tf)) * np.ones(tf.size)
+
+    def _solve(self, matrix, rhs):
+        """Solve the step's symmetric positive definite system (complex backends take
+        it as complex with zero imaginary part)."""
+        solve = self._factorize(matrix.astype(complex).tocsc())
+        return np.real(solve(rhs.astype(complex)))
+
+    def linear(self, time_s: float) -> bool:
+        """True when nothing depends on temperature (one solve per step is exact)."""
+        if self._linear is None:
+            self._linear = all(not isinstance(getattr(m, key), PropertyTable)
+                               for m in self._materials.values()
+                               for key in ("thermal_conductivity", "density", "specific_heat"))
+        return self._linear and not any(s.emissivity is not None and s.active(time_s)
+                                        for s in self.surfaces)
 
     # -- surfaces ----------------------------------------------------------------------
 
@@ -165,6 +184,9 @@ class HeatStepper:
             a0, a1, a2, t_nm1 = 1.0, 1.0, 0.0, t_n
         mid = time_s - 0.5 * h
         guess = t_n.copy()
+        if len(history) >= 2 and h_prev:  # extrapolate: fewer iterations
+            guess = t_n + (h / h_prev) * (t_n - history[-2][0])
+        linear = self.linear(mid)
         for iteration in range(1, self.max_iterations + 1):  # noqa: B007 (used after)
             te = self.domain.element_temperature(guess)
             capacity = self.domain.capacity.matrix(self.heat_capacity(te))
@@ -174,12 +196,12 @@ class HeatStepper:
             if exchange is not None:
                 matrix = matrix + exchange
             rhs = source + load + capacity @ (a1 * t_n - a2 * t_nm1) / h
-            new = spla.spsolve(matrix.tocsc(), rhs)
+            new = self._solve(matrix, rhs)
             if not np.all(np.isfinite(new)):
                 raise SolveError("the heat equation gave non-finite temperatures")
             change = np.abs(new - guess).max()
             guess = new
-            if change < self.tolerance_k:
+            if linear or change < self.tolerance_k:
                 break
         else:
             raise SolveError(f"the heat step at t = {time_s:g} s did not converge in "

@@ -44,6 +44,7 @@ class DriveState:
     drive: dict
     capped: dict  # source name -> "max_current" / "max_voltage" / None
     shortfall_w: dict  # power sources: target - reached (W), 0 when met
+    terminals: dict | None = None  # name -> (current, voltage) of the solution found
 
 
 def driven_sources(problem):
@@ -124,4 +125,6 @@ def find_drive(solve_for, terminals, problem, supplies: dict, time_s: float,
     for name, target in targets.items():
         current, voltage = values[name]
         shortfall[name] = max(0.0, target - (voltage * current.conjugate()).real)
-    return DriveState(drive, capped, shortfall), solution
+    state = DriveState(drive, capped, shortfall)
+    state.terminals = values
+    return state, solution

@@ -1,0 +1,59 @@
+"""Re-assembly of a field system whose coefficients change on a few elements.
+
+A heating study solves the same field again and again with new conductivity and
+permeability in the heated elements only. The stiffness and conductor-mass
+matrices are sums of element matrices scaled by the element's reluctivity and
+conductivity (both piecewise constant), so a new system is the first one plus
+the changes on those elements (:mod:`.elementwise`): no quadrature is repeated.
+This applies when no heated region is part of a circuit branch (a massive
+source's conductor, or a free planar conductor, whose coupling vectors would
+change too); otherwise :func:`~.system.assemble` runs again.
+"""
+
+from __future__ import annotations
+
+from dataclasses import replace
+
+import numpy as np
+
+from whorl.solver.coefficients import eddy_conductivity, reluctivity
+from whorl.solver.elementwise import ElementwiseMatrix
+from whorl.solver.system import assemble
+
+
+def applies(system, regions) -> bool:
+    """True if the elements of ``regions`` can change without touching branch couplings."""
+    in_branches = {r for br in system.branches for r in br.regions}
+    return not (set(regions) & in_branches)
+
+
+class Reassembler:
+    """Systems of ``problem`` at new element temperatures, changing only ``elements``.
+
+    Parameters
+    ----------
+    problem : Problem (with its first element temperatures)
+    elements : global indices of the elements whose coefficients may change
+    """
+
+    def __init__(self, problem, elements, progress=None):
+        self.base = assemble(problem, progress)
+        self.elements = np.asarray(elements)
+        basis = self.base.basis.with_elements(self.elements)
+        ones = np.ones((self.elements.size, basis.X.shape[-1]))
+        local = np.arange(self.base.n_field)
+        n = self.base.size
+        form = self.base.form
+        self._stiffness = ElementwiseMatrix(form.stiffness, basis, local, n, nu=ones)
+        self._mass = ElementwiseMatrix(form.conductor_mass, basis, local, n, sigma=ones)
+
+    def system(self, problem):
+        """The system of ``problem`` (the same mesh and sources; new temperatures)."""
+        base, el = self.base, self.elements
+        nu, sigma = reluctivity(problem), eddy_conductivity(problem)
+        s0 = base.S0 + self._stiffness.matrix(nu[el] - base.nu[el])
+        s1 = base.S1 + self._mass.matrix(sigma[el] - base.sigma[el])
+        nu_q = np.array(base.nu_q, copy=True)
+        nu_q[el] = nu[el][:, None]
+        return replace(base, problem=problem, nu=nu, sigma=sigma, S0=s0.tocsr(),
+                       S1=s1.tocsr(), nu_q=nu_q)
