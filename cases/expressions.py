@@ -203,7 +203,8 @@ _SHOWN: dict = {}  # placeholder -> the literal as written, for messages about t
 
 
 def units_of(tokens, unit_text: str, key: str):
-    """The pint unit of a unit run (``mm``, ``ohm*m``, ``W/m**2``, ``%``), built here.
+    """The pint unit of a unit run (``mm``, ``ohm*m``, ``W/m**2``, ``W/(m^2*K)``, ``%``),
+    built here.
 
     The text is never handed to pint's own parser: each name is looked up on its
     own, and products, quotients and integer powers are formed here, with
@@ -217,15 +218,23 @@ def units_of(tokens, unit_text: str, key: str):
 
     factors = []  # [name, +1 or -1, exponent]
     sign, i = 1, 0
+    group, outer = 1, []  # sign of the enclosing parenthesised group: W/(m*K)
     while i < len(tokens):
         tok = tokens[i]
         if tok.type == tokenize.NAME:
             factors.append([tok.string, sign, None])
             i += 1
         elif tok.string in ("*", "/"):
-            sign = 1 if tok.string == "*" else -1
+            sign = group * (1 if tok.string == "*" else -1)
             i += 1
-        elif tok.string == "**" and factors:
+        elif tok.string == "(":
+            outer.append(group)
+            group = sign
+            i += 1
+        elif tok.string == ")" and outer:
+            group = outer.pop()
+            i += 1
+        elif tok.string in ("**", "^") and factors:
             if factors[-1][2] is not None:
                 raise bad("one power per unit name (write mm**3, not mm**3**2)")
             negative = i + 1 < len(tokens) and tokens[i + 1].string == "-"

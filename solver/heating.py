@@ -40,6 +40,11 @@ FAST_CHANGE_K = 50.0
 """Largest temperature change per step while no source is on (K)."""
 MIN_STEP_FRACTION = 1.0 / 1024
 """Steps never shrink below this fraction of ``step``."""
+RESTART_FRACTION = 1.0 / 16
+"""The first step after the start and after every switching time, as a fraction of
+``step`` (it grows by at most 2 per step): the heat input jumps there, and a short
+first step keeps both the start of the transient and the energy bookkeeping of the
+restarted BDF2 accurate."""
 
 
 @dataclass(frozen=True)
@@ -231,7 +236,7 @@ def run_heating(problem, study: HeatingStudy, terminals, loss_density, region_lo
     history.temperature_k.append(t_now)
     history.field_index.append(0)
     states = [(t_now, None)]
-    t, h = 0.0, study.step_s
+    t, h = 0.0, study.step_s * RESTART_FRACTION
     h_min = study.step_s * MIN_STEP_FRACTION
     restart = True
     while t < study.end_s * (1 - 1e-12):
@@ -274,6 +279,7 @@ def run_heating(problem, study: HeatingStudy, terminals, loss_density, region_lo
         if t == upcoming:
             source, te_field = new_field(t, result.t)
             restart = True
+            h = min(h, study.step_s * RESTART_FRACTION)
         elif on and follows and np.abs(te - te_field).max() >= study.field_update_k:
             source, te_field = new_field(t, result.t)
         if history.steps % 20 == 0:

@@ -7,6 +7,9 @@ is stable. With h_n the new step and w = h_n / h_{n-1},
 
     dT/dt ~ [(1 + 2w)/(1 + w) T_{n+1} - (1 + w) T_n + w^2/(1 + w) T_{n-1}] / h_n.
 
+The energy of each step (induced, stored, lost at surfaces) is summed with
+quadratures of the scheme's order (see :meth:`HeatStepper.step`).
+
 Temperature-dependent properties (k, rho c per element at its mean
 temperature) are evaluated at the latest iterate and the step is repeated
 until the temperatures move less than ``tolerance_k`` (Picard iteration).
@@ -206,9 +209,16 @@ class HeatStepper:
         else:
             raise SolveError(f"the heat step at t = {time_s:g} s did not converge in "
                              f"{self.max_iterations} iterations (last change {change:.3g} K)")
-        te = self.domain.element_temperature(guess)
+        # Energy of the step. Implicit Euler: end-point values, which its own balance
+        # conserves exactly. BDF2: second-order quadratures (trapezoid for the surface
+        # loss, heat capacity at the step's mean temperature), as accurate as the scheme.
+        if a2 == 0.0:
+            te = self.domain.element_temperature(guess)
+            lost = self.surface_power(guess, mid) * h
+        else:
+            te = self.domain.element_temperature(0.5 * (guess + t_n))
+            lost = 0.5 * (self.surface_power(guess, mid) + self.surface_power(t_n, mid)) * h
         capacity = self.domain.capacity.matrix(self.heat_capacity(te))
         stored = float(np.sum(capacity @ (guess - t_n)))
         induced = float(np.sum(source)) * h
-        lost = self.surface_power(guess, mid) * h
         return StepResult(guess, iteration, induced, stored, lost)
