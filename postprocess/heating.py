@@ -52,11 +52,23 @@ class FieldEvaluation:
 def temperature_probe(domain, points_m):
     """(matrix, inside): matrix @ unknowns gives T at ``points_m`` (2, P) in metres;
     ``inside`` is False where a point lies outside the heated regions."""
-    points = np.asarray(points_m, dtype=float).reshape(2, -1)
+    points = np.array(points_m, dtype=float).reshape(2, -1)
     mesh = domain.basis.mesh
     full = Basis(mesh, type(domain.basis.elem)())
     cells = _locate(full, points)
     inside = np.isin(cells, domain.elements) & (cells >= 0)
+    # A point on the edge of a heated region (a line starting at its surface) may be found
+    # in the neighbouring element: look a hair's breadth to each side.
+    size = float(np.ptp(mesh.p, axis=1).max())
+    for dx, dy in ((1, 0), (-1, 0), (0, 1), (0, -1)):
+        if inside.all():
+            break
+        out = np.flatnonzero(~inside)
+        moved = points[:, out] + 1e-9 * size * np.array([[dx], [dy]])
+        found = _locate(full, moved)
+        hit = np.isin(found, domain.elements) & (found >= 0)
+        points[:, out[hit]] = moved[:, hit]
+        inside[out[hit]] = True
     matrix = full.probes(points[:, inside] if inside.any() else points[:, :0])
     matrix = matrix.tocsc()[:, domain.active] if inside.any() else None
     return matrix, inside

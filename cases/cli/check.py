@@ -62,6 +62,22 @@ def _phasor(z) -> str:
     return f"{magnitude:g}" + (f" at {angle:g} deg" if abs(angle) > 1e-12 else "")
 
 
+def _supply(text: str, source, supply) -> str:
+    """A heating study's source: its power (in place of the placeholder current), caps
+    and on window."""
+    if supply.power_w is not None:
+        text = text.replace(f"current {_phasor(source.current)} A RMS",
+                            f"power {supply.power_w:g} W")
+    extra = []
+    if supply.max_current_a is not None:
+        extra.append(f"at most {supply.max_current_a:g} A")
+    if supply.max_voltage_v is not None:
+        extra.append(f"at most {supply.max_voltage_v:g} V")
+    if supply.on != (0.0, float("inf")):
+        extra.append(f"on from {supply.on[0]:g} s to {supply.on[1]:g} s")
+    return text + ("; " + ", ".join(extra) if extra else "")
+
+
 def _source(s) -> str:
     if s.kind == "applied-field":
         b = s.flux_density
@@ -131,13 +147,29 @@ def summary(case) -> list[str]:
         f"{m.name} ({m.conductivity:.4g} S/m, mu_r {m.relative_permeability:g})"
         for m in case.materials.values()))
     for s in case.sources:
-        lines.append(f"  source     {s.name}: {_source(s)}")
+        supply = case.supplies.get(s.name)
+        text = _source(s)
+        if supply is not None:
+            text = _supply(text, s, supply)
+        lines.append(f"  source     {s.name}: {text}")
     for group in case.shorted:
         lines.append(f"  shorted    {', '.join(group.regions)}")
     st = case.study
     if st.kind == "transient":
         lines.append(f"  study      transient to {st.end_s:g} s in steps of {st.step_s:g} s "
                      f"({st.scheme}, fields every {st.save_every} steps)")
+    elif st.kind == "heating":
+        spec = st.heating
+        lines.append(f"  study      heating at {st.frequencies[0]:g} Hz to {st.end_s:g} s, steps "
+                     f"up to {st.step_s:g} s ({st.scheme}); start {spec.initial_k - 273.15:g} "
+                     f"degC; heated {', '.join(spec.heated)}; field re-solved every "
+                     f"{spec.field_update_k:g} K")
+        for i, sf in enumerate(case.surfaces, start=1):
+            window = (f" from {sf.start_s:g} s" if sf.start_s > 0 else "") + (
+                f" until {sf.end_s:g} s" if sf.end_s != float("inf") else "")
+            eps = "" if sf.emissivity is None else f", emissivity {sf.emissivity}"
+            lines.append(f"  surface    {i}: {', '.join(sf.regions)}: h {sf.convection:g} "
+                         f"W/(m^2 K) to {sf.ambient_k - 273.15:g} degC{eps}{window}")
     else:
         lines.append(f"  study      {st.kind} at " + ", ".join(f"{f:g}" for f in
                                                               st.frequencies) + " Hz")

@@ -40,4 +40,41 @@ def handle(args) -> int:
         for more in rest:
             print(" " * indent + more)
     print("\nValues at 20 degC, linear. Define your own with [material.NAME] in a case file.")
+    print("\nThermal data and temperature tables (heating studies; typical values):")
+    for m in BUILTIN.values():
+        text = thermal_text(m)
+        if text:
+            first, *rest = textwrap.wrap(f"{m.name}: {text}", args.width) or [""]
+            print(first)
+            for more in rest:
+                print("    " + more)
     return 0
+
+
+def thermal_text(m) -> str:
+    """One material's thermal data and temperature tables in words ("" if it has none)."""
+    from whorl.solver.tables import PropertyTable
+
+    def show(value, unit):
+        if isinstance(value, PropertyTable):
+            lo, hi = value.temperature_k[0] - 273.15, value.temperature_k[-1] - 273.15
+            return (f"{value.value[0]:.4g} to {value.value[-1]:.4g} {unit} "
+                    f"({lo:g} to {hi:g} degC)")
+        return f"{value:.4g} {unit}"
+
+    parts = []
+    if m.conductivity_table is not None:
+        t = m.conductivity_table
+        parts.append(f"resistivity {1 / t.value[0]:.3g} to {1 / t.value[-1]:.3g} ohm*m "
+                     f"({t.temperature_k[0] - 273.15:g} to {t.temperature_k[-1] - 273.15:g} "
+                     "degC)")
+    if m.curie_temperature_k is not None:
+        parts.append(f"Curie point {m.curie_temperature_k - 273.15:g} degC")
+    for key, unit in (("thermal_conductivity", "W/(m K)"), ("density", "kg/m^3"),
+                      ("specific_heat", "J/(kg K)"), ("emissivity", "")):
+        value = getattr(m, key)
+        if value is not None:
+            parts.append(f"{key.replace('_', ' ')} {show(value, unit).rstrip()}")
+    if not parts:
+        return ""
+    return "; ".join(parts) + (f". Source: {m.thermal_source}" if m.thermal_source else "")
