@@ -12,6 +12,7 @@ kinetics (time at temperature, prior structure, quench severity).
 from __future__ import annotations
 
 import numpy as np
+import scipy.sparse as sp
 from skfem import Basis
 
 from whorl.postprocess.circuits import terminal_voltage
@@ -68,9 +69,21 @@ def temperature_probe(domain, points_m):
         found = _locate(full, moved)
         hit = np.isin(found, domain.elements) & (found >= 0)
         points[:, out[hit]] = moved[:, hit]
+        cells[out[hit]] = found[hit]
         inside[out[hit]] = True
-    matrix = full.probes(points[:, inside] if inside.any() else points[:, :0])
-    matrix = matrix.tocsc()[:, domain.active] if inside.any() else None
+    if not inside.any():
+        return None, inside
+    # Basis values at the points (curved elements too: the inverse of the element map).
+    c = cells[inside]
+    ref = full.mapping.invF(points[:, inside, None], tind=c)
+    rows, cols, vals = [], [], []
+    for k in range(full.Nbfun):
+        phi = full.elem.gbasis(full.mapping, ref, k, tind=c)[0]
+        rows.append(np.arange(c.size))
+        cols.append(domain.local[full.element_dofs[k, c]])
+        vals.append(np.asarray(phi)[:, 0])
+    matrix = sp.csr_matrix((np.concatenate(vals), (np.concatenate(rows), np.concatenate(cols))),
+                           shape=(c.size, domain.size))
     return matrix, inside
 
 
