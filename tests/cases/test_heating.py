@@ -79,7 +79,7 @@ def _uniform_q(heating):
 
 def test_wire_with_convection_against_bessel_series(tmp_path):
     """Centre and edge temperature rise within 1 % of the series at 2, 8 and 30 s."""
-    res = run(tmp_path, WIRE.format(end="30 s", step="0.1 s", surface=CONVECTION))
+    res = run(tmp_path, WIRE.format(end="30 s", step="0.25 s", surface=CONVECTION))
     h = res["heating"]
     q, area = _uniform_q(h)
     a = np.sqrt(area / np.pi)   # the polygon's equivalent radius
@@ -148,3 +148,26 @@ def test_power_outside_a_heating_study_exits_2(tmp_path, capsys):
     path.write_text(text)
     assert main(["check", str(path)]) == 2
     assert "source.feed.power" in capsys.readouterr().err
+
+
+def test_heating_sweep_summary(tmp_path):
+    """A sweep of a heating study: final and peak temperatures, time to temperature and
+    the hardened depth per point in summary.csv; more current, hotter wire."""
+    import csv
+
+    text = WIRE.format(end="2 s", step="0.5 s", surface=CONVECTION).replace(
+        'current = "20 kA"', 'current = "amps"').replace(
+        '[study]', '[parameters]\namps = "20 kA"\n[sweep]\namps = ["10 kA", "20 kA"]\n[study]', 1
+    ).replace('heated = ["wire"]', 'heated = ["wire"]\nhardening_temperature = "25 degC"')
+    text += '[[line]]\nname = "r"\nfrom = [10, 0]\nto = [0, 0]\nsamples = 11\n'
+    path = tmp_path / "sweep.toml"
+    path.write_text(text)
+    assert main(["sweep", str(path), "--out", str(tmp_path / "out"), "--workers", "1",
+                 "-q"]) == 0
+    with open(tmp_path / "out" / "wire" / "sweep" / "summary.csv") as f:
+        rows = list(csv.DictReader(f))
+    assert [r["status"] for r in rows] == ["done", "done"]
+    peak = [float(r["point.centre.peak_temperature_c"]) for r in rows]
+    assert peak[1] > peak[0] > 20
+    assert "line.r.hardened_depth_mm" in rows[0]
+    assert float(rows[1]["point.centre.time_to_100_c_s"] or "inf") > 0

@@ -25,7 +25,7 @@ def run(name, tmp_path, capsys, *sets):
 
 
 def test_shaft_end_hardening_short(tmp_path, capsys):
-    res, folder, out = run("shaft-end-hardening", tmp_path, capsys, "freq=3 kHz",
+    res, folder, out = run("shaft-end-hardening", tmp_path, capsys, "freq=1 kHz",
                            "heat_time=1.5 s", "cycle=2.5 s")
     h = res["heating"]
     t = h["time_s"]
