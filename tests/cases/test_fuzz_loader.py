@@ -34,6 +34,7 @@ TRICKY = [
     "3 mm + 2 s", "2 mm(3)", "20 mm + gap", "freq*2", "1 kHz", "\x00", "a\nb", "../..",
     "x" * 1200, "1 " + "m*" * 300 + "m", "(" * 200 + "1" + ")" * 200, "-" * 500 + "1",
     "1e1000", "0x10", "1_000", "\ufb01", "25 %", "3 furlong", "1 m**13",
+    "polygon", "circle", "ring", "rectangle", "outline", "billet", "coil", "coil.*",
 ]
 
 scalars = st.one_of(
@@ -142,7 +143,9 @@ def test_mutated_structure_is_a_case_or_bad_input(data):
                 target = target[k]
             if isinstance(target, dict):
                 target[data.draw(st.sampled_from(["name", "repeat", "count", "step", "samples",
-                                                  "mesh_size", "margin", "points", "x"]))] = \
+                                                  "mesh_size", "margin", "points", "x",
+                                                  "fillet", "chamfer", "subtract", "shape",
+                                                  "center", "radius", "inner", "outer"]))] = \
                     data.draw(values)
         else:
             doc = _set(doc, path, data.draw(values))
