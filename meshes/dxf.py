@@ -8,7 +8,8 @@ One layer of a drawing's model space becomes one or more region shapes:
   elliptical arcs and open splines whose ends meet (within 1e-6 of the drawing's size);
 - an outline inside another one on the same layer is a hole in it; an outline inside a
   hole is a part again, and so on;
-- the parts are returned largest first (by the area they enclose).
+- the parts are returned largest first (by the area they enclose; parts of equal area
+  from the bottom up, then from left to right).
 
 Coordinates: drawing units (``$INSUNITS`` in the file's header when it names a length,
 else the model's length unit) times ``scale``, turned by ``rotate`` degrees
@@ -245,7 +246,11 @@ def _loops(pieces: list[_Piece], tol: float, layer: str) -> list[_Piece]:
 
 def _nest(outlines: list[Outline]) -> list:
     """Outlines inside others become holes (even depth: a part; odd: a hole in its parent)."""
-    order = sorted(range(len(outlines)), key=lambda i: -outlines[i].area())
+    def key(i):  # largest first; equal areas bottom to top, then left to right
+        x0, y0, _, _ = outlines[i].bbox()
+        return (-float(f"{outlines[i].area():.9g}"), round(y0, 9), round(x0, 9))
+
+    order = sorted(range(len(outlines)), key=key)
     parent = {}
     for k, i in enumerate(order):
         x, y = outlines[i].vertices[0]

@@ -1,4 +1,4 @@
-"""A picture of a tagged mesh: element edges, regions filled, a legend of region names.
+"""A picture of a tagged mesh: element edges, regions filled and named, a legend.
 
 Drawn on a bare :class:`matplotlib.figure.Figure` (Agg canvas): no display and no
 global pyplot state are touched.
@@ -7,6 +7,8 @@ global pyplot state are touched.
 from __future__ import annotations
 
 import os
+
+import numpy as np
 
 #: Region fill colours (cycled); the background is drawn in ``BACKGROUND_COLOUR``.
 PALETTE = (
@@ -28,7 +30,18 @@ def unit_name(unit_m: float) -> str:
     return f"{unit_m:g} m"
 
 
-def plot_mesh(tagged, path, title=None, unit=None, dpi=150) -> None:
+def region_label_spot(xy, t, elements):
+    """Where to write a region's name: the centroid of its element nearest to the mean
+    of its element centroids (always on the region, even for a ring or a hole)."""
+    if not len(elements):
+        return None
+    centres = xy[t[:, elements]].mean(axis=0)  # (E, 2)
+    mean = centres.mean(axis=0)
+    k = int(((centres - mean) ** 2).sum(axis=1).argmin())
+    return tuple(centres[k])
+
+
+def plot_mesh(tagged, path, title=None, unit=None, dpi=150, zoom=False) -> None:
     """Write a PNG of ``tagged`` to ``path``: edges, regions in colour, a legend.
 
     Parameters
@@ -43,6 +56,8 @@ def plot_mesh(tagged, path, title=None, unit=None, dpi=150) -> None:
         Name of the length unit for the axis labels (default from ``unit_m``).
     dpi : int
         Resolution in dots per inch.
+    zoom : bool
+        Show only the regions (their bounding box and a margin), not the whole domain.
     """
     from matplotlib.collections import LineCollection, PolyCollection
     from matplotlib.figure import Figure
@@ -63,10 +78,22 @@ def plot_mesh(tagged, path, title=None, unit=None, dpi=150) -> None:
                                              edgecolors="none"))
         edgecolor = "#888888" if name == tagged.background else "none"
         handles.append(Patch(facecolor=colour, edgecolor=edgecolor, label=name))
+    for name in tagged.regions:
+        spot = region_label_spot(xy, mesh.t, tagged.elements(name))
+        if spot is not None:
+            ax.annotate(name, spot, ha="center", va="center", fontsize="x-small",
+                        bbox={"boxstyle": "round,pad=0.2", "facecolor": "white",
+                              "alpha": 0.75, "linewidth": 0})
     width = 0.2 if mesh.t.shape[1] < 20000 else 0.08
     ax.add_collection(LineCollection(xy[mesh.facets.T], colors=EDGE_COLOUR, linewidths=width))
-    ax.set_xlim(xy[:, 0].min(), xy[:, 0].max())
-    ax.set_ylim(xy[:, 1].min(), xy[:, 1].max())
+    shown = xy
+    if zoom and tagged.regions:
+        used = np.concatenate([tagged.elements(n) for n in tagged.regions])
+        shown = xy[np.unique(mesh.t[:, used])] if used.size else xy
+    lo, hi = shown.min(axis=0), shown.max(axis=0)
+    pad = 0.1 * (hi - lo).max() if zoom else 0.0
+    ax.set_xlim(max(lo[0] - pad, xy[:, 0].min()), min(hi[0] + pad, xy[:, 0].max()))
+    ax.set_ylim(max(lo[1] - pad, xy[:, 1].min()), min(hi[1] + pad, xy[:, 1].max()))
     ax.set_aspect("equal")
     if tagged.axisymmetric:
         ax.set_xlabel(f"r [{unit}]")

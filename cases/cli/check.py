@@ -10,6 +10,7 @@ from whorl.cases.parameters import parse_set_args
 from whorl.cases.read_sweep import sweep_size
 from whorl.meshes.build import covered_regions
 from whorl.meshes.errors import MeshError
+from whorl.postprocess.outlines import plot_outlines
 
 HELP = "validate a case file without solving; print what it contains"
 
@@ -17,6 +18,9 @@ HELP = "validate a case file without solving; print what it contains"
 def add_args(parser) -> None:
     add_case_args(parser, out=False, quiet=None)
     add_limit_args(parser, mesh_time=False)
+    parser.add_argument("--picture", metavar="PNG",
+                        help="also write a picture of the regions as drawn (outlines, holes "
+                             "and region names) to this file")
 
 
 def handle(args) -> int:
@@ -30,6 +34,9 @@ def handle(args) -> int:
     except MeshError:
         covered = []  # drawing problems are the mesher's to report, at run time
     warnings = [f"WARNING: {text}" for text in model.overlap_warnings(case, covered)]
+    if args.picture:
+        plot_outlines(case.geometry, args.picture, title=case.title or case.name)
+        lines.insert(-1, f"  picture    {args.picture}")
     for line in lines[:-1] + warnings + lines[-1:]:
         print(line)
     return 0

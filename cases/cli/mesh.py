@@ -13,7 +13,8 @@ from whorl.cases.progress import StageReporter
 from whorl.meshes.msh import write_msh
 from whorl.postprocess.meshplot import plot_mesh
 
-HELP = "mesh a case only: mesh.msh (gmsh 4.1 binary, case length unit), mesh.png, counts, quality"
+HELP = ("mesh a case only: mesh.msh (gmsh 4.1 binary, case length unit), mesh.png and "
+        "mesh-regions.png (the regions close up, named), counts, quality")
 
 
 def add_args(parser) -> None:
@@ -32,6 +33,7 @@ def handle(args) -> int:
                                  args.mesh_time_limit)
         write_msh(tagged, tmp / "mesh.msh")
         plot_mesh(tagged, tmp / "mesh.png", title=case.title or case.name)
+        plot_mesh(tagged, tmp / "mesh-regions.png", title=case.title or case.name, zoom=True)
     info = tagged.info
     print(f"{case.name}: {info['nodes']} nodes, {info['elements']} triangles, "
           f"meshed in {info['time_s']:.2f} s")
@@ -43,5 +45,5 @@ def handle(args) -> int:
         size = sizes.get(name)
         shown = f"{size:.4g} {case.length_unit}" if size is not None else "-"
         print(f"  {name:<20} {count:>9} {shown:>14}")
-    print(f"written: {final / 'mesh.msh'}, {final / 'mesh.png'}")
+    print(f"written: {final / 'mesh.msh'}, {final / 'mesh.png'}, {final / 'mesh-regions.png'}")
     return 0

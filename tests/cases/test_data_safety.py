@@ -71,7 +71,7 @@ def test_a_folder_whorl_wrote_is_replaced(tmp_path, capsys):
     assert (folder / MARKER).is_file()
     (folder / "results.json").write_text("old", encoding="utf-8")
     assert main(["mesh", str(path), "-q"]) == 0  # mesh replaces the run's folder: whorl's own
-    assert sorted(os.listdir(folder)) == [MARKER, "mesh.msh", "mesh.png"]
+    assert sorted(os.listdir(folder)) == [MARKER, "mesh-regions.png", "mesh.msh", "mesh.png"]
     capsys.readouterr()
 
 

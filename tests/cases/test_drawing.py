@@ -156,3 +156,18 @@ def test_bad_drawings_exit_2_with_the_key(tmp_path, capsys, change, key, words):
     assert main(["check", str(path)]) == 2
     err = capsys.readouterr().err
     assert key in err and words in err
+
+
+def test_check_and_mesh_show_the_drawn_regions(tmp_path, capsys):
+    """`whorl check --picture` draws the outlines with their names before meshing; `whorl
+    mesh` adds a close-up of the meshed regions, named."""
+    make_drawing(tmp_path / "part.dxf")
+    path = tmp_path / "drawn.toml"
+    path.write_text(CASE.format(regions=DRAWN, kind="static", frequency=""))
+    picture = tmp_path / "outlines.png"
+    assert main(["check", str(path), "--picture", str(picture)]) == 0
+    out = capsys.readouterr().out
+    assert "bar" in out and "outline of 4 sides (1 arcs)" in out
+    assert picture.read_bytes().startswith(b"\x89PNG")
+    assert main(["mesh", str(path), "--out", str(tmp_path / "m"), "-q"]) == 0
+    assert (tmp_path / "m" / "drawn" / "mesh-regions.png").read_bytes().startswith(b"\x89PNG")

@@ -126,3 +126,31 @@ def test_billet_heater_tank(tmp_path, capsys):
     for name in ("frequency_response.csv", "frequency_response.png", "report.html"):
         assert (folder / name).stat().st_size > 0
     assert "resonance with the parallel tank capacitor" in out
+
+
+def test_shoulder_hardening_from_a_drawing(tmp_path, capsys):
+    """The demo drawn in CAD: the shipped drawing is the one drawing_demo.py makes, its
+    layers become the shaft and four numbered tubes (bottom up), series turns carry the
+    source current and the terminals deliver the losses."""
+    import math
+
+    from drawing_demo import make
+
+    from whorl.meshes.dxf import Placement, read_drawing
+
+    make(tmp_path / "fresh.dxf")
+    for layer in ("SHAFT", "COIL"):
+        shipped, _ = read_drawing(EXAMPLES / "shoulder-hardening.dxf", layer, Placement(1e-3))
+        fresh, _ = read_drawing(tmp_path / "fresh.dxf", layer, Placement(1e-3))
+        assert [s.area() for s in shipped] == pytest.approx([s.area() for s in fresh])
+    results, folder, out = run("shoulder-hardening", tmp_path, capsys)
+    sol = results["solutions"][0]
+    tube = 8 * 8 - (4 - math.pi) * 2**2 - math.pi * 2.5**2  # mm^2, the drawn tube section
+    # curved elements: the meshed section is the drawn one (corner fillets and bore)
+    assert sol["regions"]["coil.1"]["area_m2"] == pytest.approx(tube * 1e-6, rel=1e-5)
+    for k in range(1, 5):
+        assert complex(*sol["regions"][f"coil.{k}"]["current_a"]) == pytest.approx(2000.0)
+    src = sol["sources"]["inductor"]
+    assert src["power_w"] == pytest.approx(sol["totals"]["loss_w"], rel=1e-6)
+    assert sol["regions"]["shaft"]["loss_w"] > 0.5 * sol["totals"]["loss_w"]
+    assert (folder / "loss-density.png").stat().st_size > 0
