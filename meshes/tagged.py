@@ -69,7 +69,9 @@ class TaggedMesh:
         return out
 
     def refined(self, times: int = 1) -> TaggedMesh:
-        """Uniformly refined copy (regions and sides carried over)."""
+        """Uniformly refined copy (regions and sides carried over). A curved mesh comes
+        back with its new mid-edge nodes on straight edges: remesh instead to keep the
+        true curves."""
         if self.kelvin is not None:
             raise ValueError("refining a mesh with an open boundary is not supported")
         return TaggedMesh(self.mesh.refined(times), self.regions, self.unit_m,
