@@ -270,9 +270,14 @@ def run_heating(problem, study: HeatingStudy, terminals, loss_density, region_lo
         np.maximum(history.peak_k, result.t, out=history.peak_k)
         if history.temperature_at_end_of_heating is None and t >= history.end_of_heating_s:
             history.temperature_at_end_of_heating = result.t
-        # The next step's size: aim at ``limit`` per step, at most ``step``.
-        grow = 2.0 if change == 0 else min(2.0, max(0.5, 0.8 * limit / change))
-        h = min(study.step_s, max(h_min, h_try * grow))
+        # The next step: twice as long while temperatures move under 40 % of ``limit``
+        # per step, half as long above it, at most ``step`` (sizes in powers of two keep
+        # the heat solver's factorisation valid for many steps).
+        if h_try >= h * (1 - 1e-9):  # a full step (not one cut short by a switching time)
+            if change < 0.4 * limit:
+                h = min(study.step_s, 2.0 * h)
+            elif change > limit:
+                h = max(h_min, 0.5 * h)
         if t >= study.end_s:
             break
         te = domain.element_temperature(result.t)

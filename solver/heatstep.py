@@ -11,8 +11,12 @@ The energy of each step (induced, stored, lost at surfaces) is summed with
 quadratures of the scheme's order (see :meth:`HeatStepper.step`).
 
 Temperature-dependent properties (k, rho c per element at its mean
-temperature) are evaluated at the latest iterate and the step is repeated
-until the temperatures move less than ``tolerance_k`` (Picard iteration).
+temperature) are evaluated at the latest iterate and the step is corrected
+until the temperatures move less than ``tolerance_k``: each correction solves
+the residual with a factorisation kept across iterations and steps (the chord
+method), refreshed when the step size or the active surfaces change or the
+corrections shrink slowly. A step where nothing depends on temperature is one
+exact solve.
 Radiation eps sigma_SB (T^4 - T_a^4) is linearised at the latest iterate
 (Newton's tangent, per facet at its mean temperature), so the same iteration
 converges quadratically for radiation alone.
@@ -87,6 +91,7 @@ class HeatStepper:
         # The linear-solver backend of the field, kept across steps (the sparsity
         # pattern never changes, so a backend that can keeps its analysis).
         self._factorize = linalg.session(linalg.choose(backend)[1])
+        self._chord, self._chord_key = None, None
 
     # -- properties ------------------------------------------------------------------
 
@@ -117,11 +122,11 @@ class HeatStepper:
             return out
         return np.asarray(at_temperature(eps, tf)) * np.ones(tf.size)
 
-    def _solve(self, matrix, rhs):
-        """Solve the step's symmetric positive definite system (complex backends take
+    def _factor(self, matrix):
+        """A solver of the step's symmetric positive definite matrix (complex backends take
         it as complex with zero imaginary part)."""
         solve = self._factorize(matrix.astype(complex).tocsc())
-        return np.real(solve(rhs.astype(complex)))
+        return lambda rhs: np.real(solve(rhs.astype(complex)))
 
     def linear(self, time_s: float) -> bool:
         """True when nothing depends on temperature (one solve per step is exact)."""
@@ -190,6 +195,10 @@ class HeatStepper:
         if len(history) >= 2 and h_prev:  # extrapolate: fewer iterations
             guess = t_n + (h / h_prev) * (t_n - history[-2][0])
         linear = self.linear(mid)
+        key = (a0 / h, tuple(sf.active(mid) for sf in self.surfaces))
+        if linear and self._chord_key != key:
+            self._chord = None  # a linear step needs the exact matrix: one solve
+        previous = None
         for iteration in range(1, self.max_iterations + 1):  # noqa: B007 (used after)
             te = self.domain.element_temperature(guess)
             capacity = self.domain.capacity.matrix(self.heat_capacity(te))
@@ -199,13 +208,21 @@ class HeatStepper:
             if exchange is not None:
                 matrix = matrix + exchange
             rhs = source + load + capacity @ (a1 * t_n - a2 * t_nm1) / h
-            new = self._solve(matrix, rhs)
-            if not np.all(np.isfinite(new)):
+            if self._chord is None or self._chord_key[1] != key[1] \
+                    or abs(self._chord_key[0] / key[0] - 1) > (1e-12 if linear else 0.25):
+                self._chord, self._chord_key = self._factor(matrix), key
+            # The chord method: the correction from a factorisation kept across
+            # iterations and steps (refreshed when it converges slowly or the step changes).
+            delta = self._chord(rhs - matrix @ guess)
+            if not np.all(np.isfinite(delta)):
                 raise SolveError("the heat equation gave non-finite temperatures")
-            change = np.abs(new - guess).max()
-            guess = new
+            guess = guess + delta
+            change = np.abs(delta).max()
             if linear or change < self.tolerance_k:
                 break
+            if previous is not None and change > 0.3 * previous:
+                self._chord = None  # slow: factorise the current matrix next time
+            previous = change
         else:
             raise SolveError(f"the heat step at t = {time_s:g} s did not converge in "
                              f"{self.max_iterations} iterations (last change {change:.3g} K)")
