@@ -8,9 +8,10 @@
    ``field_update`` since the last field solution (unless no heated material's
    conductivity or permeability depends on temperature), and at every switching time
    (a source's ``on`` window or a surface's window opens or closes). Steps land
-   on every switching time; a step shrinks below ``step`` when temperatures
-   move fast (more than half of ``field_update`` while a source is on, or more
-   than ``FAST_CHANGE_K`` otherwise) and grows back.
+   on every switching time, the first after each one short (``RESTART_FRACTION``);
+   a step halves when temperatures move fast (more than half of ``field_update``
+   in a step while a source is on, or ``FAST_CHANGE_K`` otherwise) and doubles
+   back up to ``step`` when they move under 40 % of that.
 
 The loop takes the postprocessing it needs (loss density, terminal values) as
 callables, so this layer stays below :mod:`whorl.postprocess`.
