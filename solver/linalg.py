@@ -5,7 +5,9 @@ returns the solution; the matrix is complex CSC (or CSR). ``"auto"`` picks the
 first available backend in ``PREFERENCE``. A backend may also offer
 ``factorize.session()``: a factory of the same shape that keeps what it can
 (the symbolic analysis) between matrices of one sparsity pattern, as a
-frequency list has; a ``solve`` it returned is valid until its next call.
+frequency list has; a ``solve`` it returned is valid until its next call; and
+``factorize.family(count)``: several factorisations of one pattern from one
+analysis, all valid together (the reduced frequency sweep's expansion points).
 
 Backends (factor + solve measured on whorl's P2 systems, see docs/performance.md):
 
@@ -138,8 +140,11 @@ _ERRORS = {-1: "input inconsistent", -2: "not enough memory", -3: "reordering pr
 class _Pardiso:
     """One PARDISO handle: analysis once per sparsity pattern, factorisation per matrix."""
 
-    def __init__(self, threads: int | None = None):
+    def __init__(self, threads: int | None = None, maxfct: int = 1):
         self.lib = _mkl()
+        self.maxfct = maxfct  # factorisations of one pattern kept at once (mnum 1..maxfct)
+        self.refine = True    # iterative refinement steps after each solve
+        self.currents = {}
         self.pt = np.zeros(64, dtype=np.int64)
         self.iparm = np.zeros(64, dtype=np.int32)
         self.pattern = None
@@ -148,16 +153,17 @@ class _Pardiso:
         self.threads = threads or len(os.sched_getaffinity(0))
         self._finalizer = weakref.finalize(self, _release, self.lib, self.pt, self.iparm)
 
-    def _call(self, phase, a, ia, ja, nrhs=1, b=None, x=None):
+    def _call(self, phase, a, ia, ja, nrhs=1, b=None, x=None, mnum=1):
         n = ctypes.c_int32(self.n)
         err = ctypes.c_int32(0)
-        one = ctypes.c_int32(1)
         dummy = np.zeros(2, dtype=np.complex128)
         b = dummy if b is None else b
         x = dummy if x is None else x
         self.lib.MKL_Domain_Set_Num_Threads(ctypes.c_int(self.threads), ctypes.c_int(4))
-        self.lib.pardiso(self.pt.ctypes.data_as(ctypes.c_void_p), ctypes.byref(one),
-                         ctypes.byref(one), ctypes.byref(ctypes.c_int32(self.mtype)),
+        self.lib.pardiso(self.pt.ctypes.data_as(ctypes.c_void_p),
+                         ctypes.byref(ctypes.c_int32(self.maxfct)),
+                         ctypes.byref(ctypes.c_int32(mnum)),
+                         ctypes.byref(ctypes.c_int32(self.mtype)),
                          ctypes.byref(ctypes.c_int32(phase)), ctypes.byref(n),
                          a.ctypes.data_as(ctypes.c_void_p), ia.ctypes.data_as(ctypes.c_void_p),
                          ja.ctypes.data_as(ctypes.c_void_p), ctypes.c_void_p(None),
@@ -172,7 +178,9 @@ class _Pardiso:
                 raise _singular(f"PARDISO: {what}")
             raise SolveError(f"PARDISO failed in phase {phase}: {what} (error {err.value})")
 
-    def factorize(self, matrix):
+    def factorize(self, matrix, mnum: int = 1):
+        """Factorise ``matrix`` as factorisation number ``mnum`` (1..maxfct); a new sparsity
+        pattern starts a new analysis, which ends every earlier factorisation."""
         symmetric = is_symmetric(matrix)
         mtype = 6 if symmetric else 13
         if symmetric:
@@ -201,21 +209,23 @@ class _Pardiso:
             self._finalizer = weakref.finalize(self, _release, self.lib, self.pt, self.iparm)
             self._call(11, a, ia, ja)
             self.pattern = pattern
+            self.currents.clear()
         else:
             ia, ja = self.pattern[1], self.pattern[2]
-        self._call(22, a, ia, ja)
+        self._call(22, a, ia, ja, mnum=mnum)
         self.current = (a, ia, ja)
+        self.currents[mnum] = self.current
         log.debug("PARDISO %s: %d unknowns, %d entries in the factors, %d perturbed pivots",
                   "complex symmetric" if symmetric else "complex unsymmetric", self.n,
                   self.iparm[17], self.iparm[13])
-        return self._solver(matrix, self.current)
+        return self._solver(matrix, self.current, mnum)
 
     def _set_parameters(self, symmetric):
         p = self.iparm
         p[:] = 0
         p[0] = 1    # parameters given here
         p[1] = 3    # fill-reducing ordering: nested dissection, parallel (OpenMP)
-        p[7] = 2    # at most two steps of iterative refinement
+        p[7] = 2 if self.refine else 0  # steps of iterative refinement (at most)
         p[9] = 8 if symmetric else 13  # pivot perturbation 1e-8 / 1e-13
         p[10] = 1   # scaling ...
         p[12] = 1   # ... and weighted matching: robust on the badly scaled coupling rows
@@ -225,17 +235,17 @@ class _Pardiso:
         p[33] = os.cpu_count() or 1  # same digits whatever the threads (sweeps, workers)
         p[34] = 1   # zero-based indices
 
-    def _solver(self, matrix, current):
+    def _solver(self, matrix, current, mnum=1):
         a, ia, ja = current
 
         def solve(rhs):
-            if self.current is not current:
+            if self.currents.get(mnum) is not current:
                 raise SolveError("this PARDISO factorisation was replaced by a later one")
             b = np.asarray(rhs, dtype=np.complex128)
             shape = b.shape
             b = np.asfortranarray(b.reshape(self.n, -1))
             x = np.zeros_like(b, order="F")
-            self._call(33, a, ia, ja, nrhs=b.shape[1], b=b, x=x)
+            self._call(33, a, ia, ja, nrhs=b.shape[1], b=b, x=x, mnum=mnum)
             if not np.all(np.isfinite(x)):
                 raise _singular("PARDISO: the solution is not finite")
             r = matrix @ x - b
@@ -274,10 +284,31 @@ def pardiso(matrix):
 pardiso.session = lambda: _Pardiso().factorize
 
 
+def _pardiso_family(count, refine=True):
+    handle = _Pardiso(maxfct=count)
+    handle.refine = refine
+    return lambda matrix, k: handle.factorize(matrix, mnum=k + 1)
+
+
+pardiso.family = _pardiso_family
+
+
 def session(factorize):
     """A factory that keeps what ``factorize``'s backend can between calls (see above)."""
     maker = getattr(factorize, "session", None)
     return maker() if maker is not None else factorize
+
+
+def family(factorize, count: int, refine: bool = True):
+    """``factorize(matrix, k)`` for k in 0..count-1 whose solves all stay valid together,
+    for matrices of one sparsity pattern: PARDISO analyses the pattern once and keeps
+    ``count`` numerical factorisations; other backends factorise independently.
+    ``refine=False`` skips PARDISO's iterative refinement (two extra solves each time;
+    every solve's residual is still checked)."""
+    maker = getattr(factorize, "family", None)
+    if maker is not None:
+        return maker(count, refine)
+    return lambda matrix, k: factorize(matrix)
 
 
 def choose(name: str = "auto") -> tuple[str, object]:

@@ -202,3 +202,19 @@ def test_bad_study_keys_exit_2_with_the_key_path(tmp_path, capsys, line, key):
     path.write_text(text, encoding="utf-8")
     assert main(["check", str(path)]) == 2
     assert key in capsys.readouterr().err
+
+
+def test_past_the_most_expansion_frequencies_the_rest_is_solved_in_full(monkeypatch, caplog):
+    """With room for one expansion frequency only, the frequencies whose estimate stays
+    above the tolerance are solved in full (said in the log) and equal full solves."""
+    from whorl.solver import frequency_rom
+
+    monkeypatch.setattr(frequency_rom, "MAX_POINTS", 1)
+    freqs = list(np.geomspace(wire_frequency(0.5), wire_frequency(30), 9))
+    _, problem = wire_problem(freqs, mesh_for=wire_frequency(5))
+    with caplog.at_level("WARNING"):
+        worst_z, worst_loss, _, record = compare(problem, freqs)
+    assert "solving the rest in full" in caplog.text
+    assert worst_z < 1e-6 and worst_loss < 1e-6
+    assert len(record["expansion_frequencies_hz"]) == 1
+    assert len(record["full_solve_frequencies_hz"]) > 1
