@@ -35,6 +35,8 @@ from whorl.postprocess.plots import (
 from whorl.postprocess.records import solution_record
 from whorl.postprocess.report import write_report
 from whorl.postprocess.series_plots import plot_series
+from whorl.postprocess.surface import cached_surface_power, heated_regions, surface_rows
+from whorl.postprocess.surface_plots import plot_surface_power
 from whorl.postprocess.tables import line_rows, region_table, write_csv
 from whorl.postprocess.vtu import write_fields_vtu
 from whorl.solver.harmonic import solve_harmonic
@@ -245,6 +247,27 @@ def write_pictures(case, results, solutions, folder: Path, lines: dict) -> tuple
     return files, images
 
 
+def write_surface_power(case, solutions, folder: Path) -> tuple[list, dict]:
+    """``surface_NAME.csv`` (and its picture) for each conductor in no source; with
+    several frequencies one file per frequency, named by it (``surface_NAME_3kHz.csv``)."""
+    files, images = [], {}
+    for sol in solutions:
+        if sol.frequency_hz <= 0:
+            continue
+        at = frequency_text(sol.frequency_hz)
+        tag = "" if len(solutions) == 1 else "_" + at.replace(" ", "")
+        for name in heated_regions(sol.problem):
+            sp = cached_surface_power(sol, name)
+            files.append(write_csv(folder / f"surface_{name}{tag}.csv",
+                                   *surface_rows(sp, case.axisymmetric)))
+            if case.output.plots:
+                files.append(plot_surface_power(
+                    sp, folder / f"surface_{name}{tag}.png", case.length_unit, case.unit_m,
+                    f"{name}: power entering through the surface at {at}"))
+                images[f"surface power of {name} at {at}"] = files[-1]
+    return files, images
+
+
 def write_results(case, results, solutions, folder: Path) -> list[Path]:
     """Write results.json, regions.csv, line tables, fields, plots, the report and the
     case into ``folder``."""
@@ -279,6 +302,9 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
         lines[line.name] = (header, rows)
     pictures, images = write_pictures(case, results, solutions, folder, lines)
     files += pictures
+    surface, pictures = write_surface_power(case, solutions, folder)
+    files += surface
+    images.update(pictures)
     if "heating" in results:
         if heating_info is not None:
             more, shots, tables = write_heating_files(case, results, heating_info, folder)

@@ -18,6 +18,7 @@ from whorl.postprocess.forces import shell_force
 from whorl.postprocess.loops import axisymmetric_loop, planar_loop
 from whorl.postprocess.probes import probe
 from whorl.postprocess.regions import region_totals
+from whorl.postprocess.surface import cached_surface_power, heated_regions
 from whorl.solver.sources import Massive, Stranded
 from whorl.solver.windings import resistance_shares
 
@@ -181,6 +182,13 @@ def solution_record(solution, points=None, loops=None) -> dict:
             record["sources"][s.name]["force_n"] = [float(sum(f[0] for f in parts)),
                                                     float(sum(f[1] for f in parts))]
     add_windings(solution, record)
+    if solution.frequency_hz > 0:
+        for name in heated_regions(solution.problem):
+            sp = cached_surface_power(solution, name)
+            peak, at = sp.peak()
+            record["regions"][name].update(surface_power_w=sp.total_w,
+                                           peak_surface_power_density_w_per_m2=peak,
+                                           peak_surface_power_at_m=list(at))
     for name in solution.problem.mesh.regions:
         force = shell_force(solution, name, fields)
         record["regions"][name]["force_maxwell_n"] = list(force) if force else None

@@ -202,6 +202,13 @@ def _derived(sol) -> str:
     if eff is not None and sol.get("sources"):
         rows.append([_name("heating efficiency (loss outside any source / all losses)"),
                      f'<td class="num">{100 * eff:.1f} %</td>'])
+    for name, r in sol.get("regions", {}).items():
+        if r.get("peak_surface_power_density_w_per_m2") is not None:
+            x, y = r["peak_surface_power_at_m"]
+            rows.append([_name(f"peak surface power density in {name} "
+                               f"(at {format_si(x, 'm')}, {format_si(y, 'm')})"),
+                         f'<td class="num">{r["peak_surface_power_density_w_per_m2"] / 1e4:.4g}'
+                         " W/cm²</td>"])
     for name, s in sol.get("sources", {}).items():
         if s.get("tuning_capacitance_parallel_f"):
             rows.append([_name(f"{name}: capacitor across the terminals for resonance"),

@@ -181,6 +181,12 @@ def summary_text(results: dict) -> str:
                 lines.append(f"  {name:<20} {_eng(r['loss_w'], 'W'):>12} "
                              f"{_eng(current, 'A'):>16}"
                              + (f" {_eng(abs(complex(*at)), 'A'):>19}" if at else ""))
+        for name, r in sol["regions"].items():
+            if r.get("peak_surface_power_density_w_per_m2") is not None:
+                at = r["peak_surface_power_at_m"]
+                lines.append(f"  {name}: peak surface power density "
+                             f"{r['peak_surface_power_density_w_per_m2'] / 1e4:.4g} W/cm2 at "
+                             f"({at[0]:.4g}, {at[1]:.4g}) m")
         for name, s in sol["sources"].items():
             z = complex(*s["impedance_ohm"])
             lines.append(f"  source {name}: I {_eng(abs(complex(*s['current_a'])), 'A')}, "
