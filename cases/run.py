@@ -157,7 +157,7 @@ def solve_case(case, progress=None, mesh=None, folder: Path | None = None,
     body["warnings"] = overlaps + body.get("warnings", [])
     timing["assemble"] = info["assemble_s"]
     timing["solve"] = info["solve_s"]
-    timing["total"] = time.perf_counter() - t0
+    timing["total"] = timing["solved"] = time.perf_counter() - t0
     results = {
         "format": 1,
         "whorl_version": __version__,
@@ -268,15 +268,21 @@ def write_surface_power(case, solutions, folder: Path) -> tuple[list, dict]:
     return files, images
 
 
-def write_results(case, results, solutions, folder: Path) -> list[Path]:
+def write_results(case, results, solutions, folder: Path, started: float | None = None
+                  ) -> list[Path]:
     """Write results.json, regions.csv, line tables, fields, plots, the report and the
-    case into ``folder``."""
+    case into ``folder``.
+
+    ``timing_s`` gains ``outputs`` (the time spent here) and its ``total`` becomes
+    the whole run: since ``started`` (a :func:`time.perf_counter` value, when the
+    command began reading the case) when given, else ``solved`` plus ``outputs``.
+    """
+    begun = time.perf_counter()
     heating_info = results.pop("_heating", None)
     files = [folder / f for f in results.get("snapshots", ())]
     lines = {}
     path = folder / "results.json"
-    path.write_text(json.dumps(results, indent=2, allow_nan=True), encoding="utf-8")
-    files.append(path)
+    files.append(path)  # written last, with the time all the other outputs took
     tables = None
     if "solutions" in results:
         files.append(write_csv(folder / "regions.csv",
@@ -316,6 +322,16 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
             files.append(plot_series(results["series"], folder / "series.png", case.title))
             images["time series"] = files[-1]
         tables = transient_tables(results["series"])
+    timing = results["timing_s"]
+    timing.setdefault("solved", timing["total"])
+
+    def clock():
+        now = time.perf_counter()
+        timing["outputs"] = now - begun
+        timing["total"] = (now - started if started is not None
+                           else timing["solved"] + timing["outputs"])
+
+    clock()
     files.append(write_report(results, images, folder / "report.html", tables))
     if case.path is not None:
         # the text that was read and solved, not the file as it is now
@@ -327,6 +343,8 @@ def write_results(case, results, solutions, folder: Path) -> list[Path]:
                 "frequencies_hz": list(case.study.frequencies), "document": case.document}
     files.append(folder / "case.resolved.json")
     files[-1].write_text(json.dumps(resolved, indent=2, default=str), encoding="utf-8")
+    clock()
+    path.write_text(json.dumps(results, indent=2, allow_nan=True), encoding="utf-8")
     return files
 
 
@@ -351,13 +369,17 @@ def transient_tables(series: dict) -> dict:
 
 
 def run_case(case, root: Path, progress=None, key: str = "output.folder",
-             mesh_time_limit: float | None = DEFAULT_MESH_TIME_LIMIT) -> RunOutcome:
+             mesh_time_limit: float | None = DEFAULT_MESH_TIME_LIMIT,
+             started: float | None = None) -> RunOutcome:
     """Solve ``case`` and write ``root/CASE_NAME/``; returns what was written.
 
     The folder is checked before anything is solved: an existing folder is
     replaced only when whorl wrote it and it holds no sweep (else
     :class:`~whorl.cases.errors.CaseError` under ``key``; see :mod:`.output`).
+    ``started`` (:func:`time.perf_counter` when the command began) makes the reported
+    total the whole command's time.
     """
+    started = time.perf_counter() if started is None else started
     final = Path(root) / case.name
     with staged_folder(final, key, "run") as tmp:
         handler = logging.FileHandler(tmp / "run.log", encoding="utf-8")
@@ -376,7 +398,7 @@ def run_case(case, root: Path, progress=None, key: str = "output.folder",
 
             results, solutions, _ = solve_case(case, say, folder=tmp,
                                                mesh_time_limit=mesh_time_limit)
-            files = write_results(case, results, solutions, tmp)
+            files = write_results(case, results, solutions, tmp, started)
             log.info("done in %.2f s", results["timing_s"]["total"])
         finally:
             whorl_log.removeHandler(handler)

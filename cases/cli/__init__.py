@@ -12,6 +12,7 @@ import argparse
 import importlib
 import logging
 import sys
+import time
 
 from whorl.cases.errors import CaseError
 from whorl.meshes.errors import MeshError
@@ -45,11 +46,13 @@ def build_parser() -> argparse.ArgumentParser:
 
 def main(argv: list[str] | None = None) -> int:
     """Run the command line; returns the exit status."""
+    started = time.perf_counter()  # a run reports its total from here (loading included)
     parser = build_parser()
     try:
         args = parser.parse_args(argv)
     except SystemExit as exc:  # argparse: --help exits 0, usage errors exit 2
         return int(exc.code or 0)
+    args.started = started
     console = logging.StreamHandler()
     console.setLevel(logging.DEBUG if args.verbose else logging.WARNING)
     console.setFormatter(logging.Formatter("%(levelname)s %(name)s: %(message)s"))

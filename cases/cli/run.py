@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import time
+
 from whorl.cases.cli.common import add_case_args, add_limit_args
 from whorl.cases.errors import CaseError
 from whorl.cases.limits import check_mesh_estimate
@@ -25,6 +27,8 @@ def add_args(parser) -> None:
 
 
 def handle(args) -> int:
+    # the reported total is the whole command's time, from the start of main()
+    started = getattr(args, "started", None) or time.perf_counter()
     case = load_case(args.case, parse_set_args(args.overrides))
     if args.solver:
         if args.solver not in ("auto", *linalg.BACKENDS):
@@ -34,7 +38,7 @@ def handle(args) -> int:
     check_mesh_estimate(case, args.max_elements)
     root = output_root(case, args.out)
     outcome = run_case(case, root, StageReporter(quiet=args.quiet),
-                       output_key(args.out), args.mesh_time_limit)
+                       output_key(args.out), args.mesh_time_limit, started)
     print(summary_text(outcome.results))
     print()
     print(f"results in {outcome.folder}")

@@ -7,6 +7,7 @@ import os
 import sys
 
 from whorl.cases.cli.common import add_case_args, add_limit_args
+from whorl.cases.errors import CaseError
 from whorl.cases.parameters import parse_set_args
 from whorl.cases.run import CAUTION
 from whorl.cases.sweep import DEFAULT_MAX_POINTS, run_sweep, sweep_status
@@ -58,6 +59,10 @@ def add_args(parser) -> None:
                         help="run the points that failed before again")
     parser.add_argument("--restart", action="store_true",
                         help="discard this sweep's results and start over")
+    parser.add_argument("--vary", action="append", default=[], metavar="NAME=V1,V2,...",
+                        help="sweep a parameter over these values without editing the case, "
+                             "e.g. --vary gap=2mm,3mm,4mm (repeatable: a grid; replaces the "
+                             "case's [sweep] table)")
     parser.add_argument("--status", action="store_true",
                         help="print the progress of a running or stopped sweep; start nothing")
     parser.add_argument("--max-points", type=_positive_int, default=DEFAULT_MAX_POINTS,
@@ -105,7 +110,8 @@ def _print_status(info: dict) -> int:
               "sweep again sets the damaged store aside and rebuilds it from them")
         return 0
     c = info["counts"]
-    state = "running" if info["running"] else "stopped"
+    finished = c["done"] + c["failed"] == c["total"] and c["total"] > 0
+    state = "running" if info["running"] else "finished" if finished else "stopped"
     print(f"{state}: {c['done']} done, {c['failed']} failed, {c['running']} running, "
           f"{c['pending']} pending of {c['total']} points")
     if info.get("rate_per_hour"):
@@ -120,17 +126,34 @@ def _print_status(info: dict) -> int:
     return 0
 
 
+def parse_vary_args(items) -> dict:
+    """``["gap=2mm,3mm", "freq=1kHz,3kHz"]`` -> ``{"gap": ["2mm", "3mm"], ...}``."""
+    out: dict = {}
+    for item in items or ():
+        name, sep, values = item.partition("=")
+        name = name.strip()
+        listed = [v.strip() for v in values.split(",") if v.strip()]
+        if not sep or not name or not listed:
+            raise CaseError("--vary", f"expected NAME=VALUE,VALUE,..., got {item!r}")
+        if name in out:
+            raise CaseError(f"--vary {name}", f"{name} is given twice")
+        out[name] = listed
+    return out
+
+
 def handle(args) -> int:
     overrides = parse_set_args(args.overrides)
+    vary = parse_vary_args(args.vary)
     if args.status:
-        return _print_status(sweep_status(args.case, overrides, args.out, args.max_points))
+        return _print_status(sweep_status(args.case, overrides, args.out, args.max_points,
+                                          vary))
     bar = _Bar(args.quiet)
     try:
         outcome = run_sweep(args.case, overrides, out=args.out, workers=args.workers,
                             scheduler=args.scheduler, point_timeout=args.point_timeout,
                             retry_failed=args.retry_failed, restart=args.restart,
                             max_points=args.max_points, progress=bar,
-                            max_elements=args.max_elements)
+                            max_elements=args.max_elements, vary=vary)
     finally:
         bar.close()
     c = outcome.counts

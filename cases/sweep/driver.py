@@ -39,6 +39,8 @@ from whorl.cases.output import (
     output_root,
     write_marker,
 )
+from whorl.cases.parameters import resolve
+from whorl.cases.spec import SweepSpec
 from whorl.cases.sweep.engine import run_tasks
 from whorl.cases.sweep.lock import SweepLock
 from whorl.cases.sweep.meshcache import MeshCache
@@ -52,7 +54,7 @@ from whorl.cases.sweep.points import (
 )
 from whorl.cases.sweep.recover import adopt_points, set_aside, store_damage
 from whorl.cases.sweep.store import STORE_NAME, SweepStore, case_fingerprint
-from whorl.cases.sweep.summary import write_summary
+from whorl.cases.sweep.summary import case_units, write_summary
 
 log = logging.getLogger(__name__)
 
@@ -83,10 +85,14 @@ def sweep_folder(case, out=None) -> Path:
     return output_root(case, out) / case.name / "sweep"
 
 
-def load_sweep(path, overrides=None, max_points: int = DEFAULT_MAX_POINTS):
-    """The case and its points (list of override dicts), checked."""
+def load_sweep(path, overrides=None, max_points: int = DEFAULT_MAX_POINTS, vary=None):
+    """The case and its points (list of override dicts), checked. ``vary`` (from
+    ``--vary NAME=V1,V2``: name -> list of values) replaces the case's ``[sweep]``
+    table by a grid over those values."""
     overrides = dict(overrides or {})
     case = load_case(path, overrides, max_points)
+    if vary:
+        case.sweep = vary_sweep(case, vary, overrides)
     if case.sweep is None:
         raise CaseError("sweep", "the case has no [sweep] table: add one, e.g. "
                                  "[sweep] freq = [\"1 kHz\", \"3 kHz\"]")
@@ -99,10 +105,27 @@ def load_sweep(path, overrides=None, max_points: int = DEFAULT_MAX_POINTS):
     return case, specs
 
 
+def vary_sweep(case, vary: dict, overrides: dict) -> SweepSpec:
+    """A grid sweep from ``--vary`` values, each checked against its parameter."""
+    params = case.document.get("parameters", {})
+    for name, values in vary.items():
+        if name not in params:
+            known = ", ".join(params) or "none defined"
+            raise CaseError(f"--vary {name}", f"no parameter {name!r} in [parameters] "
+                                              f"(parameters: {known})")
+        if name in overrides:
+            raise CaseError(f"--vary {name}", f"{name} is also given by --set; give it once")
+        for value in values:
+            resolve(params, {name: value},
+                    lambda n, overridden: (f"--vary {n}" if overridden
+                                           else f"parameters.{n}", None))
+    return SweepSpec("grid", dict(vary))
+
+
 def run_sweep(path, overrides=None, out=None, workers: int | None = None, scheduler=None,
               point_timeout: float | None = None, retry_failed: bool = False,
               restart: bool = False, max_points: int = DEFAULT_MAX_POINTS, progress=None,
-              runner=None, max_elements: int | None = None) -> SweepOutcome:
+              runner=None, max_elements: int | None = None, vary=None) -> SweepOutcome:
     """Run (or resume) the sweep of the case file at ``path``.
 
     Parameters
@@ -138,7 +161,7 @@ def run_sweep(path, overrides=None, out=None, workers: int | None = None, schedu
     SweepOutcome
     """
     overrides = dict(overrides or {})
-    case, specs = load_sweep(path, overrides, max_points)
+    case, specs = load_sweep(path, overrides, max_points, vary)
     folder = sweep_folder(case, out)
     make_sweep_folder(folder, output_key(out))
     with SweepLock(folder):
@@ -234,7 +257,8 @@ def _run(store, case, specs, folder, overrides, workers, scheduler, point_timeou
     report = run_tasks(tasks, cases, text, store, folder, workers, scheduler, point_timeout,
                        progress, runner, MeshCache(folder / "mesh-cache"))
     t2 = time.perf_counter()
-    files = [write_summary(store.points(), list(case.sweep.axes), folder / "summary.csv")]
+    files = [write_summary(store.points(), list(case.sweep.axes), folder / "summary.csv",
+                           case_units(case))]
     files += write_morning(case, store.points(), list(case.sweep.axes), folder)
     timing = {"plan": t1 - t0, "run": t2 - t1, "morning": time.perf_counter() - t2}
     return SweepOutcome(folder, store.counts(), report["ran"], report["failed"],

@@ -22,9 +22,10 @@ from matplotlib.figure import Figure
 
 from whorl.cases.parameters import resolve, si_unit
 from whorl.cases.run import CAUTION
-from whorl.cases.sweep.summary import summary_rows
+from whorl.cases.sweep.summary import case_units, summary_rows
 
-PLOTTED = ("total_loss_w", ".loss_w", ".resistance_ohm", ".inductance_h", ".emf_rms_v")
+PLOTTED = ("total_loss_w", ".loss_w", ".resistance_ohm", ".inductance_h", ".emf_rms_v",
+           ".current_rms_a", ".voltage_rms_v", ".power_w")
 TABLE_ROWS = 500
 
 
@@ -35,6 +36,7 @@ def main_quantities(rows: list[dict]) -> list[str]:
         for name, value in row.items():
             if name not in names and name.endswith(PLOTTED) and isinstance(value, float):
                 names.append(name)
+    names = [n for n in names if not (n.startswith("region.") and n.endswith(".current_rms_a"))]
     return [n for n in names if any(abs(r.get(n) or 0.0) > 0 for r in rows)]
 
 
@@ -113,6 +115,13 @@ def write_morning(case, points: list[dict], axes: list[str], folder) -> list[Pat
     images: list[tuple[str, Path]] = []
     units = {name: si_unit(v) for name, v in resolve(case.document.get("parameters", {})).items()}
     units["frequency_hz"] = "Hz"
+    # axes in the case's own units: 2 mm, not 0.002 m
+    for name, (label, factor) in case_units(case).items():
+        if name in axes:
+            units[name] = label
+            for r in records:
+                if isinstance(r.get(name), float):
+                    r[name] = r[name] / factor
     if records:
         (folder / "plots").mkdir(exist_ok=True)
         for q in main_quantities(records):

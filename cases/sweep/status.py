@@ -10,7 +10,7 @@ from whorl.cases.sweep.recover import finished_folders, store_damage
 from whorl.cases.sweep.store import STORE_NAME, SweepStore, case_fingerprint
 
 
-def sweep_status(path, overrides=None, out=None, max_points: int = 0) -> dict:
+def sweep_status(path, overrides=None, out=None, max_points: int = 0, vary=None) -> dict:
     """What the store of the case's sweep says.
 
     Returns
@@ -25,7 +25,7 @@ def sweep_status(path, overrides=None, out=None, max_points: int = 0) -> dict:
         will adopt at most).
     """
     overrides = dict(overrides or {})
-    case, specs = load_sweep(path, overrides, max_points)
+    case, specs = load_sweep(path, overrides, max_points, vary)
     folder = sweep_folder(case, out)
     info = {"folder": folder, "expected": len(specs), "started": False,
             "running": is_running(folder)}

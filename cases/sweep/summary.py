@@ -1,10 +1,14 @@
 """The sweep's main numbers and ``summary.csv``, regenerated from the store.
 
 Columns: ``point``, ``status``, ``error``, the point's parameters (SI; the
-swept ones first), ``frequency_hz``, then the main numbers of each solution:
-``total_loss_w``; per region ``region.NAME.loss_w`` and
-``region.NAME.current_rms_a``; per source ``source.NAME.impedance_re_ohm``,
-``.impedance_im_ohm``, ``.resistance_ohm``, ``.inductance_h``; per loop
+swept ones first, each followed by its value in the case's own unit, named
+``NAME_UNIT`` such as ``gap_mm``), ``frequency_hz``, then the main numbers of each solution:
+``total_loss_w``; per region (regions with nothing in them left out)
+``region.NAME.loss_w`` and ``region.NAME.current_rms_a``; per source
+``source.NAME.current_rms_a``, ``.voltage_rms_v``, ``.power_w``,
+``.power_factor``, ``.tuning_capacitance_parallel_f`` (empty where it means
+nothing), ``.impedance_re_ohm``, ``.impedance_im_ohm``, ``.resistance_ohm``,
+``.inductance_h``; per loop
 ``loop.NAME.emf_re_v``, ``.emf_im_v`` and ``.emf_rms_v`` (magnitude). A point
 with a frequency list has one row per frequency; a failed point has one row
 with its error and no numbers.
@@ -17,6 +21,10 @@ import math
 import os
 from pathlib import Path
 
+from whorl.cases.parameters import resolve
+from whorl.cases.units import Quantity, to_si
+from whorl.postprocess.tables import is_empty
+
 FIXED = ("point", "status", "error")
 
 
@@ -25,9 +33,17 @@ def main_numbers(record: dict) -> dict:
     out = {"frequency_hz": record["frequency_hz"],
            "total_loss_w": record["totals"]["loss_w"]}
     for name, r in record.get("regions", {}).items():
+        if is_empty(r):
+            continue  # air with nothing in it
         out[f"region.{name}.loss_w"] = r["loss_w"]
         out[f"region.{name}.current_rms_a"] = r["current_rms_a"]
     for name, s in record.get("sources", {}).items():
+        out[f"source.{name}.current_rms_a"] = math.hypot(*s["current_a"])
+        out[f"source.{name}.voltage_rms_v"] = math.hypot(*s["voltage_v"])
+        out[f"source.{name}.power_w"] = s["power_w"]
+        out[f"source.{name}.power_factor"] = s.get("power_factor")
+        out[f"source.{name}.tuning_capacitance_parallel_f"] = s.get(
+            "tuning_capacitance_parallel_f")
         re, im = s["impedance_ohm"]
         out[f"source.{name}.impedance_re_ohm"] = re
         out[f"source.{name}.impedance_im_ohm"] = im
@@ -63,8 +79,28 @@ def heating_numbers(heating: dict, length_unit: str = "mm") -> dict:
     return out
 
 
-def summary_rows(points: list[dict], axes: list[str]) -> tuple[list[str], list[dict]]:
-    """Header and rows (dicts) of the summary table from the store's points."""
+def case_units(case) -> dict:
+    """Parameter name -> (unit label, metres/seconds/... per unit) for the parameters the
+    case file writes with a unit (``"2 mm"`` -> ``("mm", 0.001)``)."""
+    out = {}
+    for name, value in resolve(case.document.get("parameters", {})).items():
+        if isinstance(value, Quantity) and not value.dimensionless:
+            label = f"{value.units:~}".replace(" ", "")
+            out[name] = (label, to_si(Quantity(1.0, value.units)))
+    return out
+
+
+def unit_column(name: str, label: str) -> str:
+    """``gap``, ``mm`` -> ``gap_mm``; ``/`` becomes ``_per_``, other signs go."""
+    label = label.replace("/", "_per_").replace("**", "").replace("*", "")
+    return f"{name}_" + "".join(c for c in label if c.isalnum() or c == "_")
+
+
+def summary_rows(points: list[dict], axes: list[str],
+                 units: dict | None = None) -> tuple[list[str], list[dict]]:
+    """Header and rows (dicts) of the summary table from the store's points; ``units``
+    (:func:`case_units`) adds each swept parameter in the case's unit beside it."""
+    units = {n: u for n, u in (units or {}).items() if n in axes}
     params: list[str] = list(axes)
     numbers: list[str] = []
     for p in points:
@@ -78,15 +114,23 @@ def summary_rows(points: list[dict], axes: list[str]) -> tuple[list[str], list[d
         given = p.get("overrides") or {}
         base = {"point": p["point"], "status": p["status"], "error": p["error"] or ""}
         base.update({column[n]: si.get(n, given.get(n)) for n in params})
+        for n, (label, factor) in units.items():
+            value = si.get(n)
+            base[unit_column(n, label)] = value / factor if isinstance(value, float) else None
         sols = p.get("rows") if p["status"] == "done" else None
         rows += [{**base, **sol} for sol in sols or [{}]]
-    return [*FIXED, *column.values(), "frequency_hz", *numbers], rows
+    shown = []
+    for n in params:
+        shown.append(column[n])
+        if n in units:
+            shown.append(unit_column(n, units[n][0]))
+    return [*FIXED, *shown, "frequency_hz", *numbers], rows
 
 
-def write_summary(points: list[dict], axes: list[str], path) -> Path:
+def write_summary(points: list[dict], axes: list[str], path, units: dict | None = None) -> Path:
     """Write ``summary.csv`` (atomically: a temporary name, then a rename)."""
     path = Path(path)
-    header, rows = summary_rows(points, axes)
+    header, rows = summary_rows(points, axes, units)
     tmp = path.with_name(f".{path.name}.{os.getpid()}.tmp")
     try:
         with open(tmp, "w", newline="", encoding="utf-8") as f:
