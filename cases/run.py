@@ -212,7 +212,11 @@ def heating_warnings(record) -> list[str]:
 
 
 def _suffix(solutions, k) -> str:
-    return "" if len(solutions) == 1 else f"_{k + 1}"
+    """'' for one solution; else the frequency, ``_3kHz`` (``_static`` at 0 Hz)."""
+    if len(solutions) == 1:
+        return ""
+    f = solutions[k].frequency_hz
+    return "_static" if f == 0 else "_" + frequency_text(f).replace(" ", "")
 
 
 def write_pictures(case, results, solutions, folder: Path, lines: dict) -> tuple[list, dict]:

@@ -22,6 +22,16 @@ _UNIT_NAMES = {1.0: "m", 1e-1: "dm", 1e-2: "cm", 1e-3: "mm", 1e-6: "um", 0.0254:
                0.3048: "ft"}
 
 
+def region_colours(count: int) -> list:
+    """``count`` distinct fill colours: the palette, and for more regions than it holds
+    evenly spaced hues (so no two regions share a colour)."""
+    if count <= len(PALETTE):
+        return list(PALETTE[:count])
+    from matplotlib import colormaps
+
+    return [colormaps["hsv"](k / count) for k in range(count)]
+
+
 def unit_name(unit_m: float) -> str:
     """Name of a length unit given in metres (``1e-3`` -> ``"mm"``)."""
     for value, name in _UNIT_NAMES.items():
@@ -69,10 +79,14 @@ def plot_mesh(tagged, path, title=None, unit=None, dpi=150, zoom=False) -> None:
     fig = Figure(figsize=(8, 6.5))
     ax = fig.add_subplot()
     names = [tagged.background, *tagged.regions]
-    colours = [BACKGROUND_COLOUR] + [PALETTE[k % len(PALETTE)] for k in range(len(tagged.regions))]
+    colours = [BACKGROUND_COLOUR] + region_colours(len(tagged.regions))
+    # the exterior disk of an open boundary is a device of the method: not drawn
+    hidden = (tagged.elements(tagged.kelvin.subdomain) if tagged.kelvin is not None
+              else np.zeros(0, dtype=np.int64))
+    shown = np.setdiff1d(np.arange(mesh.t.shape[1]), hidden)
     handles = []
     for name, colour in zip(names, colours, strict=True):
-        elements = tagged.elements(name)
+        elements = np.setdiff1d(tagged.elements(name), hidden)
         if len(elements):
             ax.add_collection(PolyCollection(xy[mesh.t[:, elements].T], facecolors=colour,
                                              edgecolors="none"))
@@ -85,15 +99,18 @@ def plot_mesh(tagged, path, title=None, unit=None, dpi=150, zoom=False) -> None:
                         bbox={"boxstyle": "round,pad=0.2", "facecolor": "white",
                               "alpha": 0.75, "linewidth": 0})
     width = 0.2 if mesh.t.shape[1] < 20000 else 0.08
-    ax.add_collection(LineCollection(xy[mesh.facets.T], colors=EDGE_COLOUR, linewidths=width))
-    shown = xy
+    edges = np.unique(mesh.t2f[:, shown])
+    ax.add_collection(LineCollection(xy[mesh.facets[:, edges].T], colors=EDGE_COLOUR,
+                                     linewidths=width))
+    frame = xy[np.unique(mesh.t[:3, shown])]  # the model, without the exterior disk
+    visible = frame
     if zoom and tagged.regions:
         used = np.concatenate([tagged.elements(n) for n in tagged.regions])
-        shown = xy[np.unique(mesh.t[:, used])] if used.size else xy
-    lo, hi = shown.min(axis=0), shown.max(axis=0)
+        visible = xy[np.unique(mesh.t[:, used])] if used.size else frame
+    lo, hi = visible.min(axis=0), visible.max(axis=0)
     pad = 0.1 * (hi - lo).max() if zoom else 0.0
-    ax.set_xlim(max(lo[0] - pad, xy[:, 0].min()), min(hi[0] + pad, xy[:, 0].max()))
-    ax.set_ylim(max(lo[1] - pad, xy[:, 1].min()), min(hi[1] + pad, xy[:, 1].max()))
+    ax.set_xlim(max(lo[0] - pad, frame[:, 0].min()), min(hi[0] + pad, frame[:, 0].max()))
+    ax.set_ylim(max(lo[1] - pad, frame[:, 1].min()), min(hi[1] + pad, frame[:, 1].max()))
     ax.set_aspect("equal")
     if tagged.axisymmetric:
         ax.set_xlabel(f"r [{unit}]")

@@ -158,18 +158,20 @@ class _View:
 
 @register_plot("flux-lines")
 def plot_flux_lines(solution, path, levels: int = 24, phase_deg: float = 0.0, dpi=120):
-    """Contours of A (planar) or of the flux function r A (axisymmetric) at one instant.
+    """Contours of A (planar) or of the flux function r A (axisymmetric).
 
-    The instant is ``phase_deg`` of the RMS phasors' reference (0: the lines of
-    Re(A)); solid lines for positive values, dashed for negative. Conducting
-    regions are tinted, every region outlined.
+    Solid lines: the field at the instant ``phase_deg`` of the RMS phasors'
+    reference (0: the lines of Re(A)); dashed lines (AC only): a quarter period
+    later, ``phase_deg`` + 90 degrees. The legend says so. Both use the same
+    levels, so line spacing compares. Conducting regions are tinted, every
+    region outlined.
     """
     axisym = solution.problem.axisymmetric
     view = _View(solution, "Flux lines (r A)" if axisym else "Flux lines (A)", padding=0.8)
     nodal = solution.system.basis.nodal_dofs[0][view.vis.vertices]
-    values = np.real(solution.a[nodal] * np.exp(1j * math.radians(phase_deg)))
-    if axisym:
-        values = values * view.vis.xy[0]
+    phasor = solution.a[nodal] * (view.vis.xy[0] if axisym else 1.0)
+    instants = [phase_deg] + ([phase_deg + 90.0] if solution.frequency_hz > 0 else [])
+    sets = [np.real(phasor * np.exp(1j * math.radians(p))) for p in instants]
     conducting = solution.system.sigma[view.vis.elements] > 0
     if conducting.any():
         from matplotlib.colors import ListedColormap, to_rgb
@@ -179,32 +181,63 @@ def plot_flux_lines(solution, path, levels: int = 24, phase_deg: float = 0.0, dp
         view.ax.tripcolor(view.tri, facecolors=np.zeros(conducting.size),
                           cmap=ListedColormap([tint]), shading="flat")
         view.tri.set_mask(None)
-    lo, hi = float(values.min()), float(values.max())
+    lo = min(float(v.min()) for v in sets)
+    hi = max(float(v.max()) for v in sets)
     if hi - lo > 1e-12 * max(abs(lo), abs(hi), 1e-300):
-        view.ax.tricontour(view.tri, values, levels=np.linspace(lo, hi, levels + 2)[1:-1],
-                           colors=LINE_COLOUR, linewidths=0.9)
+        from matplotlib.lines import Line2D
+
+        steps = np.linspace(lo, hi, levels + 2)[1:-1]
+        handles = []
+        for values, style, at in zip(sets, ("solid", "dashed"), instants, strict=False):
+            view.ax.tricontour(view.tri, values, levels=steps, colors=LINE_COLOUR,
+                               linewidths=0.9 if style == "solid" else 0.7, linestyles=style)
+            when = ("field" if len(sets) == 1 else
+                    f"field at phase {at:g}°" + (" (a quarter period later)"
+                                                 if style == "dashed" else ""))
+            handles.append(Line2D([], [], color=LINE_COLOUR, linestyle=style, label=when))
+        view.ax.legend(handles=handles, loc="upper center", bbox_to_anchor=(0.5, -0.12),
+                       ncol=len(handles), fontsize=8, frameon=False)
     else:
         view.note("no field")
     return view.save(path, dpi)
 
 
+def _scale(values, mask=None):
+    """Colour norm and label suffix: logarithmic when the shown values span more than
+    LOG_SPAN (a skin-deep part: linear, the picture is almost blank), down to LOG_FLOOR
+    of the maximum; values are clipped to the norm's range."""
+    from matplotlib.colors import LogNorm, Normalize
+
+    shown = values if mask is None else values[~mask]
+    top = float(shown.max()) if shown.size else 0.0
+    positive = shown[shown > 0]
+    if top > 0 and positive.size and top / float(positive.min()) > LOG_SPAN:
+        norm = LogNorm(vmin=max(float(positive.min()), top * LOG_FLOOR), vmax=top)
+        return norm, np.maximum(values, norm.vmin), ", log scale"
+    return Normalize(vmin=0.0, vmax=max(top, 1e-300)), values, ""
+
+
 @register_plot("flux-density")
 def plot_flux_density(solution, path, dpi=120):
-    """Map of the cell RMS magnitude of B (T)."""
+    """Map of the cell RMS magnitude of B (T), logarithmic when it spans more than three
+    decades."""
     view = _View(solution, "|B| RMS")
     b = cell_means(solution).b_rms[view.vis.elements]
-    view.cells(b, None, MAPS["flux-density"], "|B| RMS [T]")
+    norm, b, log = _scale(b)
+    view.cells(b, None, MAPS["flux-density"], f"|B| RMS [T]{log}", norm)
     return view.save(path, dpi)
 
 
 @register_plot("current-density")
 def plot_current_density(solution, path, dpi=120):
-    """Map of the cell RMS magnitude of J (A/m^2), drawn only in conductors and windings."""
+    """Map of the cell RMS magnitude of J (A/m^2), drawn only in conductors and windings,
+    logarithmic when it spans more than three decades."""
     view = _View(solution, "|J| RMS")
     j = cell_means(solution).j_rms[view.vis.elements]
     conductor = (solution.system.sigma[view.vis.elements] > 0) | (j > 0)
     if conductor.any():
-        view.cells(j, ~conductor, MAPS["current-density"], "|J| RMS [A/m²]")
+        norm, j, log = _scale(j, ~conductor)
+        view.cells(j, ~conductor, MAPS["current-density"], f"|J| RMS [A/m²]{log}", norm)
     else:
         view.note("no conductors")
     return view.save(path, dpi)
@@ -285,6 +318,7 @@ def plot_line(header, rows, path, title: str = "Line", dpi=120):
     data = np.array(rows, dtype=float).reshape(len(rows), len(header))
     dist_col = next(k for k, n in enumerate(header) if n.startswith("distance_"))
     unit = header[dist_col][len("distance_"):]
+    x_col, x_label = _along(header, data, dist_col, unit)
     if "frequency_hz" in header:
         fcol = data[:, header.index("frequency_hz")]
         freqs = list(dict.fromkeys(fcol.tolist()))
@@ -301,9 +335,9 @@ def plot_line(header, rows, path, title: str = "Line", dpi=120):
             for name, re, im in quantities:
                 y = np.hypot(data[sel, re], data[sel, im]) if im is not None else data[sel, re]
                 tag = name if len(freqs) == 1 else f"{name}, {frequency_text(f)}"
-                ax.plot(data[sel, dist_col], y, label=tag, linewidth=1.2)
+                ax.plot(data[sel, x_col], y, label=tag, linewidth=1.2)
         ax.set_ylabel(label)
-        ax.set_xlabel(f"distance [{unit}]")
+        ax.set_xlabel(x_label)
         ax.grid(True, color="#dddddd", linewidth=0.6)
         ax.legend(fontsize="x-small", frameon=False)
     for ax in axes[len(panels):]:
@@ -313,6 +347,18 @@ def plot_line(header, rows, path, title: str = "Line", dpi=120):
     fig.tight_layout()
     fig.savefig(os.fspath(path), dpi=dpi)
     return path
+
+
+def _along(header, data, dist_col, unit):
+    """The column to plot against: the coordinate that varies along a line parallel to an
+    axis (z for an axial line, r for a radial one), else the distance from its start."""
+    coords = [k for k, n in enumerate(header[:dist_col]) if n.endswith(f"_{unit}")]
+    varying = [k for k in coords if np.ptp(data[:, k]) > 1e-9 * max(np.ptp(data[:, dist_col]),
+                                                                    1e-300)]
+    if len(varying) == 1:
+        name = header[varying[0]][: -len(unit) - 1]
+        return varying[0], f"{name} [{unit}]"
+    return dist_col, f"distance along the line [{unit}]"
 
 
 def _prefix(values):
