@@ -18,7 +18,7 @@ from whorl.cases.errors import CaseError
 from whorl.meshes.errors import MeshError
 from whorl.solver.errors import SolveError
 
-SUBCOMMANDS = ("run", "check", "mesh", "sweep", "materials")
+SUBCOMMANDS = ("run", "check", "mesh", "sweep", "materials", "verify")
 
 EXIT_OK, EXIT_FAILED, EXIT_BAD_INPUT = 0, 1, 2
 
