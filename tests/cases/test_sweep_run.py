@@ -89,7 +89,8 @@ def test_status_and_resume_without_rerunning(bad_grid, capsys):
     capsys.readouterr()
     assert main(["sweep", str(path), "--status"]) == 0
     out = capsys.readouterr().out
-    assert "stopped: 2 done, 2 failed, 0 running, 0 pending of 4 points" in out
+    # every point done or failed: the sweep is finished, not merely stopped
+    assert "finished: 2 done, 2 failed, 0 running, 0 pending of 4 points" in out
     assert "point 2 failed: meshing failed" in out
     before = _store(folder, "SELECT point, finished FROM points ORDER BY point")
     outcome = run_sweep(path)
