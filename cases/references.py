@@ -43,6 +43,18 @@ def round_wire_impedance(radius, sigma, frequency):
     return complex(k / (2 * np.pi * radius * sigma) * jv(0, k * radius) / jv(1, k * radius))
 
 
+def sphere_loss(radius, sigma, b_rms, frequency):
+    """Time-average loss (W) of a conducting sphere in a uniform RMS field B: from its
+    magnetic polarizability alpha = -2 pi a^3 [1 - 3/(k a)^2 + 3 cot(k a)/(k a)],
+    k = (1 + j)/delta, P = omega mu0 Im(alpha) H0^2 (L. D. Landau, E. M. Lifshitz,
+    *Electrodynamics of Continuous Media*, 2nd ed., 1984, sec. 59, problem 1)."""
+    omega = 2 * np.pi * frequency
+    delta = np.sqrt(2 / (omega * MU0 * sigma))
+    ka = (1 + 1j) / delta * radius
+    alpha = -2 * np.pi * radius**3 * (1 - 3 / ka**2 + 3 / (ka * np.tan(ka)))
+    return float(omega * MU0 * alpha.imag * (b_rms / MU0) ** 2)
+
+
 def two_wire_inductance(spacing, radius):
     """Inductance per metre of a two-wire line at low frequency: (mu0/pi)(ln(D/a) + 1/4)
     (F. W. Grover, *Inductance Calculations*, 1946)."""

@@ -143,6 +143,16 @@ def _solenoid(case, results):
                   "Ampere's law for a long solenoid, B = mu0 N I / h")]
 
 
+@register("sphere-in-field")
+def _sphere(case, results):
+    p, sol = results["parameters"], results["solutions"][0]
+    b = abs(_source(case, "field").flux_density)
+    expected = ref.sphere_loss(p["radius"], _material(case, "ball").conductivity, b, p["freq"])
+    return [Check(case.name, "sphere loss", "W", sol["regions"]["ball"]["loss_w"], expected,
+                  0.001, "L. D. Landau, E. M. Lifshitz, Electrodynamics of Continuous Media, "
+                         "1984, sec. 59")]
+
+
 def available() -> list[str]:
     """Stems of the shipped case files that have checks, in name order."""
     return sorted(p.stem for p in FOLDER.glob("*.toml") if p.stem in CHECKS)
