@@ -69,7 +69,6 @@ def plot_mesh(tagged, path, title=None, unit=None, dpi=150, zoom=False) -> None:
     zoom : bool
         Show only the regions (their bounding box and a margin), not the whole domain.
     """
-    import numpy as np
     from matplotlib.collections import LineCollection, PolyCollection
     from matplotlib.figure import Figure
     from matplotlib.patches import Patch

@@ -21,6 +21,7 @@ converges faster than the derivative inside a skin-deep layer.
 
 from __future__ import annotations
 
+import logging
 from dataclasses import dataclass
 
 import numpy as np
@@ -28,6 +29,8 @@ import numpy as np
 from whorl.postprocess.probes import probe
 
 GAUSS = 3  # points per boundary edge
+
+log = logging.getLogger(__name__)
 
 
 @dataclass
@@ -129,12 +132,18 @@ def surface_power(solution, region: str) -> SurfacePower:
                         np.broadcast_to(weight, density.shape).ravel())
 
 
-def cached_surface_power(solution, region: str) -> SurfacePower:
+def cached_surface_power(solution, region: str) -> SurfacePower | None:
     """:func:`surface_power`, computed once per solution and region (the results record,
-    the CSV table and the picture all need it)."""
+    the CSV table and the picture all need it); None, with a warning in the log, where
+    the outline cannot be sampled (points on the straight chords of curved elements can
+    fall outside the mesh's inverse map)."""
     cache = solution.__dict__.setdefault("_surface_power", {})
     if region not in cache:
-        cache[region] = surface_power(solution, region)
+        try:
+            cache[region] = surface_power(solution, region)
+        except Exception as err:  # skfem raises plain Exception from its inverse map
+            log.warning("no surface power density for %s: %s", region, err)
+            cache[region] = None
     return cache[region]
 
 
