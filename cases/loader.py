@@ -2,7 +2,7 @@
 
 Each section has its reader module (``read_model``, ``read_regions``,
 ``read_domain``, ``read_sources``, ``read_study``, ``read_outputs``,
-``read_sweep``); this module puts them together in dependency order:
+``read_motion``, ``read_sweep``); this module puts them together in dependency order:
 parameters first (every other value may use them), then the model (its
 length unit scales geometry), materials, regions, domain, study, sources and
 outputs. Any problem is a :class:`CaseError` naming the key path and, where
@@ -28,6 +28,7 @@ from whorl.cases.read_domain import check_regions_inside, read_domain
 from whorl.cases.read_heated import resolve_heated
 from whorl.cases.read_materials import lookup, read_materials
 from whorl.cases.read_model import read_case, read_mesh, read_model
+from whorl.cases.read_motion import read_motions
 from whorl.cases.read_outputs import read_lines, read_loops, read_output, read_points
 from whorl.cases.read_regions import read_regions
 from whorl.cases.read_sources import read_shorted, read_sources
@@ -43,7 +44,8 @@ from whorl.solver.sources import Stranded
 
 FORMAT = 1
 TOP_KEYS = ("format", "case", "model", "mesh", "parameters", "material", "region", "domain",
-            "source", "shorted", "study", "loop", "line", "point", "output", "sweep", "surface")
+            "source", "shorted", "study", "loop", "line", "point", "output", "sweep", "surface",
+            "motion")
 
 
 def load_case(path, overrides=None, max_points: int | None = MAX_SWEEP_POINTS) -> Case:
@@ -211,6 +213,8 @@ def _build(text: str, path, overrides: dict) -> Case:
     _check_applied(ctx, doc, domain.boundary, sources)
     _check_dc_windings(ctx, sources, study)
     shorted = read_shorted(ctx, doc, region_names, conductivity, sources)
+    wound = {r for s in sources if s.kind == "stranded" for r in (*s.regions, *s.return_regions)}
+    motions = read_motions(ctx, doc, entries, domain.spec, conductivity, wound)
 
     geometry = Geometry(tuple(e.spec for e in entries), domain.spec, model.axisymmetric,
                         model.unit_m, options)
@@ -229,6 +233,7 @@ def _build(text: str, path, overrides: dict) -> Case:
         sweep=read_sweep(_section(ctx, doc, "sweep"), list(ctx.params)),
         path=Path(path) if path else None, document=document, text=text,
         surfaces=surfaces, supplies=supplies, temperature_k=model.temperature_k,
+        motions=motions,
     )
 
 

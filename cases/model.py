@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from dataclasses import replace
 
 from whorl.meshes.geometry import Geometry
@@ -28,16 +29,21 @@ def sizing_frequency(case) -> float:
 
 def sized_geometry(case) -> Geometry:
     """The case's geometry with each eddy-current region's skin depth (length unit)
-    at :func:`sizing_frequency`, for the mesher's surface refinement; an open
+    at :func:`sizing_frequency` (a rotating region: at least at its turning frequency
+    Omega / (2 pi)), for the mesher's surface refinement; an open
     boundary asks the mesher for the exterior disk."""
     top = sizing_frequency(case)
     wound = wound_regions(case)
+    spinning = {r: abs(m.angular_velocity) / (2 * math.pi)
+                for m in case.motions if m.kind == "rotation" for r in m.regions}
     regions = []
     for spec in case.geometry.regions:
         material = case.materials[case.region_material[spec.name]]
         delta = None
-        if top > 0 and material.conductivity > 0 and spec.name not in wound:
-            delta = skin_depth(top, material.conductivity, material.relative_permeability)
+        # a rotating body sees the field alternate at least at its turning frequency
+        freq = max(top, spinning.get(spec.name, 0.0))
+        if freq > 0 and material.conductivity > 0 and spec.name not in wound:
+            delta = skin_depth(freq, material.conductivity, material.relative_permeability)
             delta /= case.unit_m
         regions.append(replace(spec, skin_depth=delta))
     domain = case.geometry.domain
@@ -52,7 +58,7 @@ def problem(case, tagged) -> Problem:
     materials.setdefault(tagged.background, materials.get("domain"))
     problem = Problem(mesh=tagged, materials=materials, sources=tuple(case.sources),
                       boundary=dict(case.boundary), depth_m=case.depth_m, order=case.order,
-                      shorted=tuple(case.shorted))
+                      shorted=tuple(case.shorted), motions=tuple(case.motions))
     return with_winding_resistance(problem)
 
 

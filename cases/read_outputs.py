@@ -31,11 +31,12 @@ def _inside(ctx: Context, table: Table, key: str, xy, domain) -> None:
 
 def read_loops(ctx: Context, document: dict, domain) -> tuple[LoopSpec, ...]:
     """Axisymmetric loops take ``at = [r, z]`` (r > 0); planar loops take ``from`` and
-    ``to``, the two long sides of a loop of length ``model.depth``. ``turns`` default 1."""
+    ``to``, the two long sides of a loop of length ``model.depth``. ``turns`` default 1;
+    ``velocity`` (m/s, optional) makes a moving loop."""
     loops = []
     for name, table in _named(ctx, document, "loop"):
         if ctx.axisymmetric:
-            table.allow({"name", "at", "turns"}, required=("name", "at"),
+            table.allow({"name", "at", "turns", "velocity"}, required=("name", "at"),
                         hint=" (axisymmetric loops are circles through 'at')")
             at = table.point("at")
             _inside(ctx, table, "at", at, domain)
@@ -43,7 +44,8 @@ def read_loops(ctx: Context, document: dict, domain) -> tuple[LoopSpec, ...]:
                 raise table.error("at", "a loop on the axis (r = 0) encloses no flux")
             start = end = None
         else:
-            table.allow({"name", "from", "to", "turns"}, required=("name", "from", "to"),
+            table.allow({"name", "from", "to", "turns", "velocity"},
+                        required=("name", "from", "to"),
                         hint=" (planar loops run along z through 'from' and 'to')")
             at = None
             start, end = table.point("from"), table.point("to")
@@ -54,7 +56,8 @@ def read_loops(ctx: Context, document: dict, domain) -> tuple[LoopSpec, ...]:
         turns = table.value("turns", "dimensionless", 1.0)
         if turns == 0:
             raise table.error("turns", "turns must not be 0")
-        loops.append(LoopSpec(name, turns, at, start, end))
+        velocity = table.vector("velocity", "velocity", 2, geometry=False, default=None)
+        loops.append(LoopSpec(name, turns, at, start, end, velocity))
     return tuple(loops)
 
 

@@ -19,7 +19,6 @@ from whorl.cases.meshing import DEFAULT_MESH_TIME_LIMIT, mesh_with_limit
 from whorl.cases.output import staged_folder
 from whorl.cases.run_heating import solve_heating, write_heating_files
 from whorl.cases.run_transient import series_tables, solve_transient
-from whorl.postprocess.balance import TOLERANCE as BALANCE_TOLERANCE
 from whorl.postprocess.frequency_response import (
     plot_frequency_response,
     resonance,
@@ -70,6 +69,8 @@ def loop_description(loop, unit_m) -> dict:
     else:
         out["start"] = (loop.start[0] * unit_m, loop.start[1] * unit_m)
         out["end"] = (loop.end[0] * unit_m, loop.end[1] * unit_m)
+    if getattr(loop, "velocity", None) is not None:
+        out["velocity"] = tuple(loop.velocity)
     return out
 
 
@@ -87,7 +88,7 @@ def model_warnings(case, mesh, records) -> list[str]:
                            "exterior mesh; add the return conductor")
     for rec in records:
         balance = rec["totals"]["power_balance"]
-        if balance["applies"] and balance["relative_mismatch"] > BALANCE_TOLERANCE:
+        if balance["applies"] and balance["relative_mismatch"] > balance["tolerance"]:
             out.append(f"at {rec['frequency_hz']:g} Hz the terminal power and the field power "
                        f"differ by {balance['relative_mismatch']:.2e} (relative): do not trust "
                        "the impedance")

@@ -22,6 +22,7 @@ class LoopSpec:
     at: tuple[float, float] | None = None
     start: tuple[float, float] | None = None
     end: tuple[float, float] | None = None
+    velocity: tuple[float, float] | None = None  # m/s; None for a loop at rest
 
 
 @dataclass(frozen=True)
@@ -123,6 +124,7 @@ class Case:
     surfaces: tuple = ()  # [[surface]] of a heating study (solver Surface objects)
     supplies: dict = field(default_factory=dict)  # heating: source name -> Supply
     temperature_k: float = 293.15  # [model] temperature
+    motions: tuple = ()  # solver.motion Translation / Rotation objects (SI)
 
     @property
     def axisymmetric(self) -> bool:

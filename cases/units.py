@@ -57,6 +57,8 @@ KINDS: dict[str, Kind] = {
     "specific_heat": Kind("specific heat", "J/(kg*K)", "460 J/(kg*K)"),
     "heat_transfer": Kind("heat transfer coefficient", "W/(m**2*K)", "15 W/(m^2*K)"),
     "power": Kind("power", "W", "60 kW"),
+    "velocity": Kind("velocity", "m/s", "12 m/s"),
+    "angular_velocity": Kind("angular velocity", "rad/s", "3000 rpm"),
 }
 """Kinds of quantity a case-file key may expect, with the unit values are converted to.
 

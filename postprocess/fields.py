@@ -2,7 +2,9 @@
 
 Conventions: RMS phasors; time averages are Re(...) of RMS products with no
 factor 1/2. Planar: J and E along z, B = (Bx, By). Axisymmetric: J and E
-along phi, B = (Br, Bz).
+along phi, B = (Br, Bz). In a moving conductor J = sigma (E + v x B) with
+(v x B) = -v . grad A along z or phi (see :mod:`whorl.solver.motion`); E is the
+field in the frame of the sources.
 """
 
 from __future__ import annotations
@@ -33,6 +35,7 @@ class QuadratureFields:
     force: np.ndarray    # (2, E, Q) time-average Lorentz force density Re(J x B*), N/m^3
     dv: np.ndarray
     ds: np.ndarray
+    velocity: np.ndarray | None = None  # (2, E, Q) of moving conductors (m/s), else None
 
 
 def element_sources(solution):
@@ -98,8 +101,10 @@ def quadrature_fields(solution) -> QuadratureFields:
     u, js = element_sources(solution)
     sigma = system.sigma[:, None]
     e = -a_rate + form.voltage_field(u[:, None], x) * (sigma > 0)
-    j = sigma * e + js[:, None]
-    loss = sigma * np.abs(e) ** 2  # |J|^2 / sigma where eddy currents flow, 0 elsewhere
+    velocity = system.motion.velocity_q if getattr(system, "motion", None) else None
+    driving = e if velocity is None else e - (velocity[0] * grad_a[0] + velocity[1] * grad_a[1])
+    j = sigma * driving + js[:, None]
+    loss = sigma * np.abs(driving) ** 2  # |J|^2 / sigma where eddy currents flow, 0 elsewhere
     energy = 0.5 * system.nu_q * (np.abs(b[0]) ** 2 + np.abs(b[1]) ** 2)
     if system.problem.axisymmetric:
         force = np.array([np.real(j * np.conj(b[1])), -np.real(j * np.conj(b[0]))])
@@ -107,4 +112,4 @@ def quadrature_fields(solution) -> QuadratureFields:
         force = np.array([-np.real(j * np.conj(b[1])), np.real(j * np.conj(b[0]))])
     ds = basis.dx
     dv = system.kappa * ds * form.weight(x)
-    return QuadratureFields(x, a, b, e, j, loss, energy, force, dv, ds)
+    return QuadratureFields(x, a, b, e, j, loss, energy, force, dv, ds, velocity)

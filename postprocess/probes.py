@@ -8,6 +8,7 @@ import numpy as np
 
 from whorl.meshes.curved import is_curved, straight
 from whorl.postprocess.fields import element_sources
+from whorl.solver.motion import element_velocity
 
 
 @dataclass
@@ -27,6 +28,7 @@ class Probe:
     j: np.ndarray
     loss: np.ndarray
     inside: np.ndarray
+    grad_a: np.ndarray | None = None  # (2, P) gradient of A, Wb/m^2
 
 
 def _locate(basis, points, exclude=None):
@@ -91,9 +93,13 @@ def probe(solution, points_m) -> Probe:
     u, js = element_sources(solution)
     cu = np.maximum(cells, 0)
     e = -a_rate + np.where(sigma > 0, form.voltage_field(u[cu], x), 0)
-    j = sigma * e + np.where(inside, js[cu], np.nan)
-    loss = sigma * np.abs(e) ** 2
-    return Probe(points, a, a_rate, b, nu * b, e, j, loss, inside)
+    driving = e
+    if getattr(solution.problem, "motions", ()):  # J = sigma (E + v x B) in moving conductors
+        vel = element_velocity(solution.problem, x, cells)
+        driving = e - np.where(sigma > 0, vel[0] * grad[0] + vel[1] * grad[1], 0)
+    j = sigma * driving + np.where(inside, js[cu], np.nan)
+    loss = sigma * np.abs(driving) ** 2
+    return Probe(points, a, a_rate, b, nu * b, e, j, loss, inside, grad)
 
 
 def line_points(start_m, end_m, samples: int) -> np.ndarray:

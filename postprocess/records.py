@@ -11,11 +11,12 @@ import logging
 
 import numpy as np
 
-from whorl.postprocess.balance import TOLERANCE, power_balance
+from whorl.postprocess.balance import power_balance
 from whorl.postprocess.circuits import source_results
 from whorl.postprocess.fields import quadrature_fields
 from whorl.postprocess.forces import shell_force
 from whorl.postprocess.loops import axisymmetric_loop, planar_loop
+from whorl.postprocess.moving_loops import moving_loop
 from whorl.postprocess.probes import probe
 from whorl.postprocess.regions import region_totals
 from whorl.postprocess.surface import cached_surface_power, heated_regions
@@ -43,6 +44,9 @@ def region_record(t) -> dict:
         "peak_loss_at_m": list(t.peak_loss_at_m) if t.peak_loss_at_m else None,
         **({"radial_load_n": t.radial_load_n, "mean_radial_pressure_pa": t.mean_radial_pressure_pa}
            if t.radial_load_n is not None else {}),
+        **({"mechanical_power_w": t.mechanical_power_w}
+           if t.mechanical_power_w is not None else {}),
+        **({"torque_nm": t.torque_nm} if t.torque_nm is not None else {}),
     }
 
 
@@ -90,11 +94,16 @@ def loop_record(lp) -> dict:
 
 
 def loop_result(solution, loop: dict, surface: bool = True):
-    """``loop``: name, turns and ``at`` (axisymmetric) or ``start``/``end`` (planar), metres."""
+    """``loop``: name, turns and ``at`` (axisymmetric) or ``start``/``end`` (planar), metres;
+    an optional ``velocity`` (m/s) makes it a moving loop (:mod:`.moving_loops`)."""
     turns = loop.get("turns", 1.0)
     if solution.problem.axisymmetric:
-        return axisymmetric_loop(solution, loop["name"], *loop["at"], turns, surface)
-    return planar_loop(solution, loop["name"], loop["start"], loop["end"], turns, surface)
+        result = axisymmetric_loop(solution, loop["name"], *loop["at"], turns, surface)
+    else:
+        result = planar_loop(solution, loop["name"], loop["start"], loop["end"], turns, surface)
+    if loop.get("velocity") is not None and any(loop["velocity"]):
+        result = moving_loop(solution, result, loop)
+    return result
 
 
 def derived_numbers(solution, regions, sources) -> dict:
@@ -157,7 +166,7 @@ def solution_record(solution, points=None, loops=None) -> dict:
     regions = region_totals(solution, fields)
     sources = source_results(solution)
     balance = power_balance(solution, regions, sources)
-    if balance["applies"] and balance["relative_mismatch"] > TOLERANCE:
+    if balance["applies"] and balance["relative_mismatch"] > balance["tolerance"]:
         log.error("power balance off at %g Hz: terminals %s VA, fields %s VA (mismatch %.2e): "
                   "the impedance is not to be trusted", solution.frequency_hz,
                   balance["terminals_va"], balance["fields_va"], balance["relative_mismatch"])

@@ -1,4 +1,5 @@
-"""Totals per region: current, loss, stored energy, Lorentz force."""
+"""Totals per region: current, loss, stored energy, Lorentz force; for moving regions
+the torque and the mechanical power that keeps them moving."""
 
 from __future__ import annotations
 
@@ -7,6 +8,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from whorl.postprocess.fields import quadrature_fields
+from whorl.solver.motion import moving_regions
 
 
 @dataclass
@@ -21,6 +23,11 @@ class RegionTotals:
         the ring, int f_r dV (N): > 0 bursts the ring outwards, < 0 crushes it inwards
     mean_radial_pressure_pa : axisymmetric only: radial_load_n over the ring's outer
         lateral area 2 pi r_max h (Pa), the mean pressure that holds the load
+    mechanical_power_w : moving regions only: the time-average power that keeps the
+        motion going, -int f . v dV (W): -F . v for a translation, -torque x angular
+        velocity for a rotation; > 0 when the field brakes the body
+    torque_nm : rotating regions only: the time-average Lorentz torque about the centre of
+        rotation, int ((x - c) x f)_z dV (N m, per model depth), counter-clockwise positive
     """
 
     name: str
@@ -33,6 +40,8 @@ class RegionTotals:
     peak_loss_at_m: tuple[float, float] | None = None
     radial_load_n: float | None = None
     mean_radial_pressure_pa: float | None = None
+    mechanical_power_w: float | None = None
+    torque_nm: float | None = None
 
 
 def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
@@ -58,6 +67,11 @@ def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
         fx = per_region((q.force[0] * q.dv).sum(1))
     fy = per_region((q.force[1] * q.dv).sum(1))
     peak = q.loss.max(axis=1)
+    moving = moving_regions(solution.problem)
+    mechanical = None
+    if moving and q.velocity is not None:
+        mechanical = per_region((-(q.force[0] * q.velocity[0] + q.force[1] * q.velocity[1])
+                                 * q.dv).sum(1))
     out = {}
     for i, name in enumerate(names):
         elems = tagged.elements(name)  # the mesh's own element lists, not a search
@@ -73,7 +87,15 @@ def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
             r_max, height = pts[0].max(), pts[1].max() - pts[1].min()
             load = float(radial[i])
             pressure = load / (2 * np.pi * r_max * height) if r_max * height > 0 else None
+        mech = torque = None
+        if name in moving:
+            mech = float(mechanical[i])
+            centre = getattr(moving[name], "center", None)
+            if centre is not None:
+                arm = (q.x[0, elems] - centre[0], q.x[1, elems] - centre[1])
+                torque = float(((arm[0] * q.force[1, elems] - arm[1] * q.force[0, elems])
+                                * q.dv[elems]).sum())
         out[name] = RegionTotals(name, complex(current[i]), float(loss[i]), float(energy[i]),
                                  (float(fx[i]), float(fy[i])), float(area[i]), top, at,
-                                 load, pressure)
+                                 load, pressure, mech, torque)
     return out

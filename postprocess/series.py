@@ -3,7 +3,8 @@
 Every quantity is instantaneous (A, V, W, N, Wb, J). The energy check:
 the energy the sources deliver at their terminals, the integral of
 sum v i dt, equals the losses integrated in time plus the magnetic energy
-stored at the end (the field starts from zero). Integrals use the trapezoidal
+stored at the end (the field starts from zero); with moving conductors the
+delivered power includes the mechanical power that keeps them moving. Integrals use the trapezoidal
 rule, consistent to second order with the BDF2 steps.
 """
 
@@ -30,6 +31,7 @@ class SeriesRecorder:
         self.loss: list[float] = []
         self.energy: list[float] = []
         self.power_in: list[float] = []
+        self.mechanical: list[float] = []
 
     def add(self, state) -> None:
         """Record one transient state (a Solution with ``time_s`` and ``x_rate``)."""
@@ -44,6 +46,10 @@ class SeriesRecorder:
             r["force_n"].append([t.force_n[0], t.force_n[1]])
             if t.mean_radial_pressure_pa is not None:
                 r.setdefault("mean_radial_pressure_pa", []).append(t.mean_radial_pressure_pa)
+            if t.mechanical_power_w is not None:
+                r.setdefault("mechanical_power_w", []).append(t.mechanical_power_w)
+            if t.torque_nm is not None:
+                r.setdefault("torque_nm", []).append(t.torque_nm)
         resistive = 0.0
         system = state.system
         caps = {s.name: i for i, s in enumerate(system.capacitors)}
@@ -69,11 +75,13 @@ class SeriesRecorder:
         self.loss.append(sum(t.loss_w for t in regions.values()) + resistive)
         self.energy.append(sum(t.magnetic_energy_j for t in regions.values()))
         self.power_in.append(sum(s.power_w for s in sources.values()))
+        self.mechanical.append(sum(t.mechanical_power_w or 0.0 for t in regions.values()))
 
     def energy_balance(self) -> dict:
         """Delivered, dissipated and stored energy (J) and the relative mismatch."""
         t = np.asarray(self.time_s)
-        delivered = float(np.trapezoid(self.power_in, t)) if t.size > 1 else 0.0
+        power = np.asarray(self.power_in) + np.asarray(self.mechanical)
+        delivered = float(np.trapezoid(power, t)) if t.size > 1 else 0.0
         dissipated = float(np.trapezoid(self.loss, t)) if t.size > 1 else 0.0
         stored = float(self.energy[-1]) if self.energy else 0.0
         scale = max(abs(delivered), abs(dissipated) + abs(stored), 1e-300)
@@ -85,5 +93,7 @@ class SeriesRecorder:
         return {"time_s": self.time_s, "regions": self.regions, "sources": self.sources,
                 "loops": self.loop_series,
                 "totals": {"loss_w": self.loss, "magnetic_energy_j": self.energy,
-                           "source_power_w": self.power_in},
+                           "source_power_w": self.power_in,
+                           **({"mechanical_power_w": self.mechanical}
+                              if any(self.mechanical) else {})},
                 "energy_balance": self.energy_balance()}

@@ -32,6 +32,8 @@ class Problem:
         Temperature of every element (K), set by a heating study: conductivity and
         permeability are then evaluated per element from the materials' temperature
         tables and Curie points. None: every material takes its plain values.
+    motions : tuple of Translation, Rotation
+        Conductors in steady rigid motion (:mod:`.motion`).
     """
 
     mesh: TaggedMesh
@@ -42,6 +44,7 @@ class Problem:
     order: int = 2
     shorted: tuple = ()
     element_temperature_k: object = None
+    motions: tuple = ()
 
     @property
     def axisymmetric(self) -> bool:

@@ -17,6 +17,10 @@ Rows, with kappa = depth (planar) or 2 pi (axisymmetric) and d/dt -> j omega:
 - driven massive source:   kappa sum_b sign_b u_b + R_s I_s - v_C = v(t)
 - driven stranded source:  kappa f_s^T dA/dt + R_s I_s - v_C = v(t)
 - series capacitor:        C dv_C/dt + I_s = 0   (v_C drives the current out of it)
+
+Moving conductors (:mod:`.motion`) add their frequency-independent convection
+matrix to the field rows of S0 and their motional current -d_b^T A to the branch
+rows of S0 (and, where streamline upwinding acts, its blocks to S0 and S1).
 """
 
 from __future__ import annotations
@@ -27,9 +31,9 @@ import numpy as np
 import scipy.sparse as sp
 from skfem import Basis, ElementTriP0, ElementTriP1, ElementTriP2, asm
 
-from whorl.solver import axisymmetric, planar
+from whorl.solver import axisymmetric, motion, planar
 from whorl.solver.boundary import AppliedFieldSide, FluxNormal, FluxParallel, Open, Potential
-from whorl.solver.circuits import Branch, branches
+from whorl.solver.circuits import Branch, branches, eddy_regions
 from whorl.solver.coefficients import eddy_conductivity, reluctivity
 from whorl.solver.errors import SolveError
 from whorl.solver.kelvin import glue, reluctivity_factor
@@ -67,6 +71,7 @@ class System:
     target: np.ndarray | None = None  # unknown i is identified with unknown target[i]
     coupling: np.ndarray | None = None  # (N, branches): c_b, int_b sigma v (x r^0)
     conductance: np.ndarray | None = None  # (branches,): G_b
+    motion: object | None = None  # motion.MotionBlocks of a model with moving conductors
 
     @property
     def n_field(self) -> int:
@@ -181,6 +186,15 @@ def assemble(problem, progress=None) -> System:
           [None, None, None, None], [None, None, None, None]]
     S1 = [[M, None, None, None], [-C_sp.T, None, None, None],
           [None, None, None, None], [None, None, None, None]]
+    if problem.motions:
+        motion.check(problem, set(eddy_regions(problem)))
+        mb = motion.assemble_motion(problem, basis, form, sigma, nu, brs, _p0)
+        system.motion = mb
+        S0[0][0] = K + mb.field
+        S0[0][1] = -sp.csr_matrix(C + mb.coupling)
+        S0[1][0] = -sp.csr_matrix(mb.current)
+        if mb.mass is not None:
+            S1[0][0] = M + mb.mass
     if nd:
         FI = np.zeros((nf, nd))     # field rows, driven-current columns
         BI = np.zeros((nb, nd))     # branch rows, driven-current columns

@@ -161,6 +161,15 @@ def summary(case) -> list[str]:
         lines.append(f"  source     {s.name}: {text}")
     for group in case.shorted:
         lines.append(f"  shorted    {', '.join(group.regions)}")
+    for m in case.motions:
+        regions = ", ".join(_compact(m.regions))
+        if m.kind == "rotation":
+            what = (f"rotation at {m.angular_velocity:g} rad/s "
+                    f"({m.angular_velocity * 30 / 3.141592653589793:g} rpm) about "
+                    f"{_xy(tuple(c / case.unit_m for c in m.center))}")
+        else:
+            what = f"translation at {_xy(m.velocity)} m/s"
+        lines.append(f"  motion     {regions}: {what}, stabilisation {m.stabilisation}")
     st = case.study
     if st.kind == "transient":
         lines.append(f"  study      transient to {st.end_s:g} s in steps of {st.step_s:g} s "

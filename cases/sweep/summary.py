@@ -4,7 +4,8 @@ Columns: ``point``, ``status``, ``error``, the point's parameters (SI; the
 swept ones first, each followed by its value in the case's own unit, named
 ``NAME_UNIT`` such as ``gap_mm``), ``frequency_hz``, then the main numbers of each solution:
 ``total_loss_w``; per region (regions with nothing in them left out)
-``region.NAME.loss_w`` and ``region.NAME.current_rms_a``; per source
+``region.NAME.loss_w`` and ``region.NAME.current_rms_a`` (moving regions also
+``.force_x_n``, ``.force_y_n``, ``.mechanical_power_w``, ``.torque_nm``); per source
 ``source.NAME.current_rms_a``, ``.voltage_rms_v``, ``.power_w``,
 ``.power_factor``, ``.tuning_capacitance_parallel_f`` (empty where it means
 nothing), ``.impedance_re_ohm``, ``.impedance_im_ohm``, ``.resistance_ohm``,
@@ -37,6 +38,11 @@ def main_numbers(record: dict) -> dict:
             continue  # air with nothing in it
         out[f"region.{name}.loss_w"] = r["loss_w"]
         out[f"region.{name}.current_rms_a"] = r["current_rms_a"]
+        for key in ("force_n", "mechanical_power_w", "torque_nm"):  # moving regions
+            if key == "force_n" and "mechanical_power_w" in r:
+                out[f"region.{name}.force_x_n"], out[f"region.{name}.force_y_n"] = r[key]
+            elif key != "force_n" and key in r:
+                out[f"region.{name}.{key}"] = r[key]
     for name, s in record.get("sources", {}).items():
         out[f"source.{name}.current_rms_a"] = math.hypot(*s["current_a"])
         out[f"source.{name}.voltage_rms_v"] = math.hypot(*s["voltage_v"])
