@@ -172,22 +172,33 @@ def test_axisymmetric_translation_drags_either_way():
 
 
 def test_transient_motion_energy_balance():
-    """A coil switched on beside a moving billet (BDF2): delivered (terminal + mechanical)
-    energy = losses + stored energy, within 1 % (second-order time integration)."""
+    """A coil ramped up beside a billet moving at 30 m/s (BDF2, upwinding on): the
+    mechanical energy is a third of what is delivered, and counting it closes the energy
+    balance (delivered = losses + stored) as well as in the same model at rest, the
+    residual mismatch being the time bookkeeping's, which halves with the step."""
+    from dataclasses import replace
+
     from whorl.postprocess.series import SeriesRecorder
     from whorl.solver.waveforms import Ramp
 
-    problem = billet_problem(3.0, order=1)
-    coil = problem.sources[0]
-    from dataclasses import replace
-    problem.sources = (replace(coil, current=None, waveform=Ramp(100.0, 2e-3)),)
-    system = assemble(problem)
-    rec = SeriesRecorder()
-    for state in march(system, 6e-3, 1e-4):
-        rec.add(state)
-    bal = rec.energy_balance()
-    assert bal["relative_mismatch"] < 0.01
-    assert any(p > 0 for p in rec.mechanical)
+    def run(speed, step):
+        problem = billet_problem(speed, order=1)
+        if speed == 0:
+            problem.motions = ()
+        problem.sources = (replace(problem.sources[0], current=None,
+                                   waveform=Ramp(100.0, 2e-3)),)
+        rec = SeriesRecorder()
+        for state in march(assemble(problem), 6e-3, step):
+            rec.add(state)
+        bal = rec.energy_balance()
+        return bal, np.trapezoid(rec.mechanical, rec.time_s)
+
+    moving, mechanical = run(30.0, 1e-4)
+    finer, _ = run(30.0, 5e-5)
+    still, _ = run(0.0, 1e-4)
+    assert mechanical > 0.25 * moving["delivered_j"]
+    assert moving["relative_mismatch"] < 1.2 * still["relative_mismatch"]
+    assert finer["relative_mismatch"] < 0.6 * moving["relative_mismatch"]
 
 
 def test_rotation_torque_is_the_moment_of_the_force():
