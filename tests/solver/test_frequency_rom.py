@@ -179,8 +179,11 @@ def test_round_wire_internal_impedance_over_a_range_against_bessel():
 def test_nonlinear_and_moving_models_fall_back_to_full_solves(caplog):
     """A problem with moving conductors (issue 13) is solved in full, said in the log."""
     freqs = list(np.geomspace(100, 1e4, 9))
-    _, problem = wire_problem(freqs, mesh_for=100.0)
-    problem.motions = ("moving",)  # what the motion code attaches; any non-empty value
+    case, problem = wire_problem(freqs, mesh_for=100.0)
+    from whorl.solver.motion import Rotation
+
+    shape = case.geometry.regions[0].shape  # the wire spinning about its axis
+    problem.motions = (Rotation(("wire",), 10.0, tuple(c * case.unit_m for c in shape.center)),)
     with caplog.at_level("INFO"):
         _, info = solve_harmonic(problem, freqs)
     assert "reduced" not in info
