@@ -75,7 +75,7 @@ def _translation(ctx, table: Table, regions, shapes, domain, mode) -> Translatio
                                          "m/s): in an axisymmetric model bodies move along "
                                          "the axis only, velocity = [0, vz]")
     if math.hypot(*velocity) == 0:
-        raise table.error("velocity", "the velocity is zero: leave the [[motion]] out")
+        return Translation(tuple(regions), velocity, mode)  # at rest (a sweep's first point)
     for r in regions:
         why = _not_a_band(shapes[r], velocity, domain)
         if why:
