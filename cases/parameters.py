@@ -128,13 +128,19 @@ def si_values(params: Mapping) -> dict:
     return {name: to_si(value) for name, value in params.items()}
 
 
-_SI_LABELS = ("m", "Hz", "s", "A", "V", "W", "S/m", "ohm*m", "ohm", "T", "Wb", "H", "F", "rad")
+_SI_LABELS = ("m", "Hz", "s", "A", "V", "W", "S/m", "ohm*m", "ohm", "T", "Wb", "H", "F", "rad",
+              "m/s")
+_ANGLES = ("radian", "revolution", "degree", "turn", "revolutions_per_minute",
+           "revolutions_per_second")
 
 
 def si_unit(value) -> str:
     """The SI unit of a resolved parameter as :func:`si_values` gives it ("" if none known)."""
     if not isinstance(value, Quantity):
         return ""
+    if value.dimensionality == Quantity(1.0, "Hz").dimensionality and any(
+            name in _ANGLES for name in value._units):
+        return "rad/s"  # an angular velocity ("3000 rpm") is kept in rad/s, not Hz
     for label in _SI_LABELS:
         if value.dimensionality == Quantity(1.0, label).dimensionality:
             return "rad" if label == "rad" else label

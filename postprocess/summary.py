@@ -209,6 +209,14 @@ def summary_text(results: dict) -> str:
                              "in series")
             if extra:
                 lines.append("    " + ", ".join(extra))
+        for name, r in sol["regions"].items():
+            if "mechanical_power_w" in r:  # a moving region
+                torque = (f", torque {_eng(r['torque_nm'], 'N m')}" if "torque_nm" in r
+                          else "")
+                lines.append(f"  moving {name}: force ({_eng(r['force_n'][0], 'N')}, "
+                             f"{_eng(r['force_n'][1], 'N')}){torque}, mechanical power "
+                             f"{_eng(r['mechanical_power_w'], 'W')} (what the drive supplies; "
+                             "< 0: the field drives the body)")
         for name, lp in sol.get("loops", {}).items():
             flux, emf = abs(complex(*lp["flux_wb"])), abs(complex(*lp["emf_v"]))
             link = lp.get("turns", 1.0) * flux

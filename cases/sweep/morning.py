@@ -25,7 +25,8 @@ from whorl.cases.run import CAUTION
 from whorl.cases.sweep.summary import case_units, summary_rows
 
 PLOTTED = ("total_loss_w", ".loss_w", ".resistance_ohm", ".inductance_h", ".emf_rms_v",
-           ".current_rms_a", ".voltage_rms_v", ".power_w")
+           ".current_rms_a", ".voltage_rms_v", ".power_w", ".torque_nm", ".mechanical_power_w",
+           ".force_x_n", ".force_y_n")
 TABLE_ROWS = 500
 
 

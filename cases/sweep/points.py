@@ -88,7 +88,7 @@ def problem_key(case) -> str:
     parts = (case.geometry_kind, case.unit_m, case.depth_m, case.order, case.geometry,
              sorted(case.materials.items()), sorted(case.region_material.items()),
              sorted(case.boundary.items()), case.sources, case.shorted, case.study.kind,
-             case.loops, case.lines, case.points)
+             case.loops, case.lines, case.points, getattr(case, "motions", ()))
     return hashlib.sha256(repr(parts).encode()).hexdigest()[:20]
 
 
