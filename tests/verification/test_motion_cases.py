@@ -11,7 +11,7 @@ from whorl.cases.loader import load_case
 from whorl.cases.run import solve_case
 from whorl.cases.spec import LoopSpec, StudySpec
 
-CASES = Path(__file__).resolve().parents[2] / "cases" / "verification"
+CASES = Path(__file__).resolve().parent  # the case lives beside this test
 
 
 @pytest.fixture(scope="module")
