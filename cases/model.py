@@ -26,6 +26,19 @@ def sizing_frequency(case) -> float:
     return max(case.study.frequencies, default=0.0)
 
 
+SIZING_FIELD = 1e4
+"""A/m: the field strength at which a B-H curve's permeability sizes the mesh (a typical
+surface field of induction heating, common practice)."""
+
+
+def sizing_permeability(material) -> float:
+    """Relative permeability for the mesh's skin-depth rule: the material's own, or for a
+    B-H curve its secant permeability B/(mu0 H) at ``SIZING_FIELD``."""
+    if material.bh_curve is not None:
+        return material.bh_curve.relative_permeability_at(SIZING_FIELD)
+    return material.relative_permeability
+
+
 def sized_geometry(case) -> Geometry:
     """The case's geometry with each eddy-current region's skin depth (length unit)
     at :func:`sizing_frequency`, for the mesher's surface refinement; an open
@@ -37,7 +50,7 @@ def sized_geometry(case) -> Geometry:
         material = case.materials[case.region_material[spec.name]]
         delta = None
         if top > 0 and material.conductivity > 0 and spec.name not in wound:
-            delta = skin_depth(top, material.conductivity, material.relative_permeability)
+            delta = skin_depth(top, material.conductivity, sizing_permeability(material))
             delta /= case.unit_m
         regions.append(replace(spec, skin_depth=delta))
     domain = case.geometry.domain

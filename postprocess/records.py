@@ -176,6 +176,8 @@ def solution_record(solution, points=None, loops=None) -> dict:
         },
         "derived": derived_numbers(solution, regions, sources),
     }
+    if getattr(solution, "nonlinear", None) is not None:
+        record["nonlinear"] = dict(solution.nonlinear)
     for s in solution.problem.sources:  # a source's force: the sum over its conductors
         if s.name in record["sources"]:
             parts = [regions[r].force_n for r in (*s.regions, *s.return_regions)]

@@ -32,6 +32,10 @@ class Problem:
         Temperature of every element (K), set by a heating study: conductivity and
         permeability are then evaluated per element from the materials' temperature
         tables and Curie points. None: every material takes its plain values.
+    element_magnetisation : ndarray or None
+        Per element, a multiplier m in [0, 1] of the magnetisation (a Curie
+        transition): B = mu0 H + m (B_curve(H) - mu0 H), and for a linear material
+        mu_r_eff = 1 + m (mu_r - 1). None: m = 1 everywhere.
     """
 
     mesh: TaggedMesh
@@ -42,6 +46,7 @@ class Problem:
     order: int = 2
     shorted: tuple = ()
     element_temperature_k: object = None
+    element_magnetisation: object = None
 
     @property
     def axisymmetric(self) -> bool:
