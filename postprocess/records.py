@@ -41,6 +41,7 @@ def region_record(t) -> dict:
         "area_m2": t.area_m2,
         "peak_loss_density_w_per_m3": t.peak_loss_density_w_per_m3,
         "peak_loss_at_m": list(t.peak_loss_at_m) if t.peak_loss_at_m else None,
+        "peak_flux_density_t": t.peak_flux_density_t,
         **({"radial_load_n": t.radial_load_n, "mean_radial_pressure_pa": t.mean_radial_pressure_pa}
            if t.radial_load_n is not None else {}),
     }

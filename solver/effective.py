@@ -201,7 +201,7 @@ class EffectiveSystem:
         nu = self.start() if start is None else np.array(start, float)
         alpha, change_before = ALPHA, np.inf
         history = []
-        for k in range(1, MAX_ITERATIONS + 1):
+        for _ in range(MAX_ITERATIONS):
             x = self.solve_linear(nu, omega, b)
             from_b, from_h = self.effective_reluctivity(x, nu)
             new = np.sqrt(from_b * from_h)
@@ -222,6 +222,7 @@ class EffectiveSystem:
                              f"energy-weighted relative change of the reluctivity was "
                              f"{change:.2e} "
                              f"(tolerance {NU_TOL:g})")
+        k = len(history)
         log.debug("effective permeability at %g Hz: %d solutions, changes %s", frequency_hz,
                   k, ", ".join(f"{h:.1e}" for h in history))
         return Solution(self.state_system(nu), float(frequency_hz), x,

@@ -145,7 +145,9 @@ class NonlinearSystem:
     def linear(self, a0, a1):
         key = (a0, a1)
         if key not in self._matrices:
-            self._matrices = {key: self.red.matrix(a0, a1)}
+            if len(self._matrices) > 4:  # a few step sizes at most (restarts)
+                self._matrices.clear()
+            self._matrices[key] = self.red.matrix(a0, a1)
         return self._matrices[key]
 
     def solve(self, b, a0=1.0, a1=0.0, x0=None, what="the static field"):

@@ -40,7 +40,7 @@ def wall_flux(current):
     return quad(lambda r: law(current / (2 * np.pi * r)), A_IN, A_OUT, limit=200)[0]
 
 
-def tube_case(current, points=40):
+def tube_case(current, points=40, linear=False):
     h = np.concatenate([[0.0], np.geomspace(HK * 1e-3, 1e6, points - 1)])
     b = law(h)
     hs = ", ".join(f"{v:.10g}" for v in h)
@@ -86,6 +86,9 @@ name = "wall"
 from = [10, 0]
 to = [20, 0]
 """
+    if linear:
+        text = text.replace(f"bh_curve = {{ h = [{hs}], b = [{bs}] }}",
+                            "relative_permeability = 600")
     return parse_case(text)
 
 
@@ -130,3 +133,18 @@ def test_linear_material_unchanged_by_saturable_code(tube_mesh):
     problem.materials["tube"] = replace(problem.materials["tube"], bh_curve=None)
     sols, _ = solve_harmonic(problem, [0.0])
     assert sols[0].nonlinear is None
+
+
+def test_saturation_warning_for_linear_steel(tube_mesh):
+    """A linear mu_r = 600 tube at 32 kA would carry hundreds of tesla: warned (more than
+    about 2.2 T is beyond any steel, common practice); the saturable run is not warned and
+    reports a peak flux density on the curve (Ampere: H = I / (2 pi r_inner))."""
+    results, _, _ = solve_case(tube_case(3.2e4, linear=True), mesh=tube_mesh)
+    peak = results["solutions"][0]["regions"]["tube"]["peak_flux_density_t"]
+    assert peak > 100
+    (text,) = [w for w in results["warnings"] if "'tube'" in w]
+    assert "bh_curve" in text and f"{peak:.3g} T" in text
+    results, _, _ = solve_case(tube_case(3.2e4), mesh=tube_mesh)
+    assert not any("'tube'" in w for w in results["warnings"])
+    peak = results["solutions"][0]["regions"]["tube"]["peak_flux_density_t"]
+    assert peak == pytest.approx(law(3.2e4 / (2 * np.pi * A_IN)), rel=0.02)
