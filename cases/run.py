@@ -44,7 +44,8 @@ from whorl.solver.harmonic import solve_harmonic
 log = logging.getLogger(__name__)
 
 CAUTION = (
-    "Results are estimates from an idealised model (linear materials, 2D geometry). "
+    "Results are estimates from an idealised model (2D geometry; steel by a single-valued "
+    "B-H curve without hysteresis, or by a fixed permeability). "
     "Confirm them by measurement before relying on them. Induction equipment works at "
     "high voltage and current, heats parts to dangerous temperatures and produces "
     "fields to which exposure limits apply: follow local codes, the equipment maker's "

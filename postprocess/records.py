@@ -19,6 +19,7 @@ from whorl.postprocess.loops import axisymmetric_loop, planar_loop
 from whorl.postprocess.probes import probe
 from whorl.postprocess.regions import region_totals
 from whorl.postprocess.surface import cached_surface_power, heated_regions
+from whorl.solver.materials import MU0, skin_depth
 from whorl.solver.sources import Massive, Stranded
 from whorl.solver.windings import resistance_shares
 
@@ -106,6 +107,10 @@ def derived_numbers(solution, regions, sources) -> dict:
         m = problem.materials[name]
         if m.conductivity > 0 and solution.frequency_hz > 0:
             skin[name] = m.skin_depth(solution.frequency_hz)
+            if getattr(m, "bh_curve", None) is not None:  # at the most saturated element's
+                elems = problem.mesh.elements(name)      # effective permeability
+                mu_r = 1.0 / (MU0 * float(np.max(solution.system.nu[elems])))
+                skin[name] = skin_depth(solution.frequency_hz, m.conductivity, mu_r)
     fed = {r for s in problem.sources for r in (*getattr(s, "regions", ()),
                                                  *getattr(s, "return_regions", ()))}
     work = sum(t.loss_w for n, t in regions.items() if n not in fed)

@@ -18,16 +18,18 @@ from meshing import tensor_mesh
 from scipy.integrate import solve_ivp
 from scipy.sparse import diags
 
-from whorl.solver import FluxNormal, Material, Problem, Stranded
+from whorl.postprocess.regions import region_totals
+from whorl.solver import FluxNormal, Material, Problem, Stranded, solve_harmonic
 from whorl.solver.bh import BHCurve
 from whorl.solver.constants import MU0
 from whorl.solver.system import assemble
 from whorl.solver.transient import march
-from whorl.solver.waveforms import Step
+from whorl.solver.waveforms import Sine, Step
 
 JS, MU_I = 2.0, 600.0
 HK = JS / (MU0 * (MU_I - 1))
 SIGMA, HALF, H0 = 5e6, 5e-3, 2e4
+HEIGHT = 2e-4
 TIMES = (1e-3, 3e-3, 8e-3)
 
 
@@ -113,3 +115,57 @@ def test_slab_flux_against_1d_diffusion(reference):
     print("slab flux", flux, "reference", reference, "relative", flux / reference - 1)
     np.testing.assert_allclose(flux, reference, rtol=0.02)
     assert max(iterations) <= 12
+
+
+def slab_problem(curve, nx, source):
+    """The slab between two current sheets (see the module notes), order 2."""
+    gap, sheet, outer = 1e-3, 1e-3, 2e-3
+    xs = np.concatenate([np.linspace(-HALF - gap - sheet - outer, -HALF - gap - sheet, 3),
+                         np.linspace(-HALF - gap - sheet, -HALF, 5)[1:-1],
+                         np.linspace(-HALF, HALF, nx),
+                         np.linspace(HALF, HALF + gap + sheet, 5)[1:-1],
+                         np.linspace(HALF + gap + sheet, HALF + gap + sheet + outer, 3)])
+    mesh = tensor_mesh(xs, np.array([0.0, HEIGHT]),
+                       {"slab": lambda x, y: np.abs(x) < HALF,
+                        "go": lambda x, y: (x > HALF + gap) & (x < HALF + gap + sheet),
+                        "back": lambda x, y: (x < -HALF - gap) & (x > -HALF - gap - sheet)})
+    return Problem(mesh, {"slab": Material("steel", SIGMA, MU_I, bh_curve=curve),
+                          "go": Material("air"), "back": Material("air"),
+                          "domain": Material("air")},
+                   sources=(source,),
+                   # outside the sheets H = 0: the left side flux-normal lets the flux
+                   # close at infinity; the right side (A = 0) fixes the gauge
+                   boundary={"top": FluxNormal(), "bottom": FluxNormal(),
+                             "left": FluxNormal()}, order=2)
+
+
+def test_sine_transient_against_effective_permeability():
+    """Sine-driven faces (H0 = 20 kA/m peak at 200 Hz: the surface deep in saturation),
+    marched to a periodic state (5 periods, 40 steps each; the decay time of the start,
+    sigma mu d^2, is under a period at the saturated permeability), loss averaged over the
+    last period, against the harmonic effective-permeability run. The effective
+    permeability keeps only the fundamental and so differs by some per cent (Paoli, Biro
+    and Buchgraber, IEEE Trans. Magn. 34(5), 1998, report differences of that order):
+    measured -1.9 % here; the check asks for under 5 % and the sign (the harmonic run
+    lower), so a change that moves the difference shows."""
+    h = np.concatenate([[0.0], np.geomspace(HK * 1e-3, 1e6, 39)])
+    curve = BHCurve.from_points(h, law(h))
+    f, peak = 200.0, H0 * HEIGHT
+    periods, per = 5, 40
+    problem = slab_problem(curve, 21, Stranded("sheet", ("go",), turns=1.0,
+                                                return_regions=("back",),
+                                                waveform=Sine(peak, f)))
+    losses = [region_totals(state)["slab"].loss_w
+              for state in march(assemble(problem), periods / f, 1 / (f * per), "bdf2",
+                                 backend="scipy-superlu")
+              if state.time_s > (periods - 1) / f + 1e-9]
+    transient = float(np.mean(losses))
+    problem = slab_problem(curve, 21, Stranded("sheet", ("go",), turns=1.0,
+                                                return_regions=("back",),
+                                                current=peak / np.sqrt(2)))
+    (sol,), _ = solve_harmonic(problem, [f])
+    harmonic = region_totals(sol)["slab"].loss_w
+    difference = harmonic / transient - 1
+    print(f"slab loss: transient {transient:.4g} W/m, harmonic {harmonic:.4g} W/m, "
+          f"difference {100 * difference:+.2f} %")
+    assert -0.05 < difference < 0
