@@ -1,5 +1,7 @@
 """B-H curves in case files: CSV beside the case or inline; bad curves exit 2 with key and row."""
 
+from pathlib import Path
+
 import numpy as np
 import pytest
 
@@ -152,3 +154,15 @@ def test_frohlich_kennelly_initial_permeability():
     assert c.initial_relative_permeability == pytest.approx(600, rel=1e-3)
     hk = 2.0 / (MU0 * 599)
     assert c.flux_density(np.array([hk]))[0] == pytest.approx(MU0 * hk + 1.0, rel=1e-3)
+
+
+def test_heating_study_refuses_a_curve(tmp_path, capsys):
+    """Heating studies solve their field linearly: a B-H curve there is refused, not
+    silently replaced by its initial permeability."""
+    demo = Path(__file__).resolve().parents[2] / "cases" / "examples"
+    text = (demo / "shaft-end-hardening.toml").read_text(encoding="utf-8")
+    text = text.replace('material = "shaft-steel"', 'material = "medium-carbon-steel-bh"', 1)
+    (tmp_path / "case.toml").write_text(text, encoding="utf-8")
+    assert main(["check", str(tmp_path / "case.toml")]) == 2
+    err = capsys.readouterr().err
+    assert "region[1].material" in err and "B-H" in err
