@@ -27,6 +27,19 @@ def sizing_frequency(case) -> float:
     return max(case.study.frequencies, default=0.0)
 
 
+SIZING_FIELD = 1e4
+"""A/m: the field strength at which a B-H curve's permeability sizes the mesh (a typical
+surface field of induction heating, common practice)."""
+
+
+def sizing_permeability(material) -> float:
+    """Relative permeability for the mesh's skin-depth rule: the material's own, or for a
+    B-H curve its secant permeability B/(mu0 H) at ``SIZING_FIELD``."""
+    if material.bh_curve is not None:
+        return material.bh_curve.relative_permeability_at(SIZING_FIELD)
+    return material.relative_permeability
+
+
 def sized_geometry(case) -> Geometry:
     """The case's geometry with each eddy-current region's skin depth (length unit)
     at :func:`sizing_frequency` (a rotating region: at least at its turning frequency
@@ -43,7 +56,7 @@ def sized_geometry(case) -> Geometry:
         # a rotating body sees the field alternate at least at its turning frequency
         freq = max(top, spinning.get(spec.name, 0.0))
         if freq > 0 and material.conductivity > 0 and spec.name not in wound:
-            delta = skin_depth(freq, material.conductivity, material.relative_permeability)
+            delta = skin_depth(freq, material.conductivity, sizing_permeability(material))
             delta /= case.unit_m
         regions.append(replace(spec, skin_depth=delta))
     domain = case.geometry.domain

@@ -5,6 +5,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 from whorl.cases.errors import CaseError
+from whorl.cases.read_bh import read_bh_curve
 from whorl.cases.read_tables import property_value, temperature
 from whorl.cases.reader import Context, Table
 from whorl.solver.materials import BUILTIN, Material
@@ -46,6 +47,8 @@ def read_materials(ctx: Context, raw, temperature_k: float = 293.15) -> dict[str
     ``specific_heat``, ``emissivity`` 0..1) may be a table over temperature;
     ``curie_temperature`` removes the magnetisation at and above it. Plain
     conductivity and permeability are the tables' values at ``temperature_k``.
+    A ``bh_curve`` (see :mod:`.read_bh`) makes the material saturable; it excludes
+    ``relative_permeability``, which then holds the curve's initial value.
     """
     if raw is None:
         return {}
@@ -56,7 +59,7 @@ def read_materials(ctx: Context, raw, temperature_k: float = 293.15) -> dict[str
     for name, data in raw.items():
         table = Table(ctx, data, f"material.{name}", (f"material.{name}", 0))
         table.allow({"conductivity", "resistivity", "relative_permeability", "source",
-                     "curie_temperature", *THERMAL})
+                     "curie_temperature", "bh_curve", *THERMAL})
         if table.has("conductivity") and table.has("resistivity"):
             raise table.error("resistivity", "give conductivity or resistivity, not both")
         if table.has("resistivity"):
@@ -74,9 +77,17 @@ def read_materials(ctx: Context, raw, temperature_k: float = 293.15) -> dict[str
                                        f"the physical range (at most {MAX_CONDUCTIVITY:g} S/m; "
                                        "silver, the best conductor at room temperature, has "
                                        "6.3e7 S/m)")
-        mu_r = property_value(table, "relative_permeability", "dimensionless", 1.0,
-                              minimum=0.0, strict=True)
-        for value in _values(mu_r):
+        curve = None
+        if table.has("bh_curve"):
+            if table.has("relative_permeability"):
+                raise table.error("relative_permeability", "give relative_permeability or "
+                                  "bh_curve, not both (the curve sets the permeability)")
+            curve = read_bh_curve(table)
+            mu_r = curve.initial_relative_permeability
+        else:
+            mu_r = property_value(table, "relative_permeability", "dimensionless", 1.0,
+                                  minimum=0.0, strict=True)
+        for value in _values(mu_r) if curve is None else ():
             if not MIN_PERMEABILITY <= value <= MAX_PERMEABILITY:
                 raise table.error("relative_permeability", f"{value:g} is beyond the physical "
                                                            f"range ({MIN_PERMEABILITY:g} to "
@@ -89,7 +100,7 @@ def read_materials(ctx: Context, raw, temperature_k: float = 293.15) -> dict[str
             name, 0.0, 1.0, source,
             conductivity_table=conductivity if isinstance(conductivity, PropertyTable) else None,
             permeability_table=mu_r if isinstance(mu_r, PropertyTable) else None,
-            curie_temperature_k=curie, thermal_source=source, **thermal)
+            curie_temperature_k=curie, thermal_source=source, **thermal, bh_curve=curve)
         plain = {}
         if not isinstance(conductivity, PropertyTable):
             plain["conductivity"] = conductivity

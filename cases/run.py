@@ -43,7 +43,8 @@ from whorl.solver.harmonic import solve_harmonic
 log = logging.getLogger(__name__)
 
 CAUTION = (
-    "Results are estimates from an idealised model (linear materials, 2D geometry). "
+    "Results are estimates from an idealised model (2D geometry; steel by a single-valued "
+    "B-H curve without hysteresis, or by a fixed permeability). "
     "Confirm them by measurement before relying on them. Induction equipment works at "
     "high voltage and current, heats parts to dangerous temperatures and produces "
     "fields to which exposure limits apply: follow local codes, the equipment maker's "
@@ -74,6 +75,30 @@ def loop_description(loop, unit_m) -> dict:
     return out
 
 
+SATURATION_T = 2.2
+"""T: about the most flux density any steel carries before it is saturated (common
+practice; pure iron saturates near 2.15 T)."""
+
+
+def saturation_warnings(case, records) -> list[str]:
+    """Linear magnetic materials (mu_r > 1) carrying more than ``SATURATION_T``."""
+    out = []
+    for rec in records:
+        for name, r in rec["regions"].items():
+            material = case.materials.get(case.region_material.get(name, ""))
+            if material is None or material.bh_curve is not None:
+                continue
+            peak = r.get("peak_flux_density_t", 0.0)
+            if material.relative_permeability > 1 and peak > SATURATION_T:
+                out.append(f"at {rec['frequency_hz']:g} Hz region {name!r} (linear material "
+                           f"{material.name!r}, mu_r {material.relative_permeability:g}) "
+                           f"carries a peak flux density of {peak:.3g} T, beyond the about "
+                           f"{SATURATION_T:g} T at which any steel saturates (common practice): "
+                           "its permeability, skin depth and loss are not to be trusted; give "
+                           "the material a bh_curve")
+    return out
+
+
 def model_warnings(case, mesh, records) -> list[str]:
     """What the user should know about the model's validity, in words."""
     out = []
@@ -86,6 +111,7 @@ def model_warnings(case, mesh, records) -> list[str]:
                            f"{net:.4g} A: in a planar model with an open boundary the field of a "
                            "net current never decays, so inductances and fluxes depend on the "
                            "exterior mesh; add the return conductor")
+    out += saturation_warnings(case, records)
     for rec in records:
         balance = rec["totals"]["power_balance"]
         if balance["applies"] and balance["relative_mismatch"] > balance["tolerance"]:

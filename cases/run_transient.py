@@ -30,9 +30,12 @@ def solve_transient(case, problem, loops, say, folder: Path | None):
         (folder / "snapshots").mkdir()
     t1 = time.perf_counter()
     backend = linalg.choose(case.solver)[0]
+    reports = []
     for n, state in enumerate(march(system, study.end_s, study.step_s, study.scheme,
                                     backend=backend, progress=say)):
         recorder.add(state)
+        if state.nonlinear is not None:
+            reports.append(state.nonlinear)
         if folder is not None and case.output.fields and n % study.save_every == 0:
             path = write_fields_vtu(state, folder / "snapshots" / f"step_{n:06d}.vtu")
             snapshots.append((state.time_s, path))
@@ -40,7 +43,19 @@ def solve_transient(case, problem, loops, say, folder: Path | None):
         files = [p for _, p in snapshots] + [write_pvd(snapshots, folder / "snapshots.pvd")]
     info = {"assemble_s": t_asm, "solve_s": time.perf_counter() - t1, "system": system,
             "unknowns": int(system.size - system.fixed.size), "backend": backend}
-    return recorder.record(), files, info
+    record = recorder.record()
+    if reports:
+        record["nonlinear"] = nonlinear_summary(reports)
+    return record, files, info
+
+
+def nonlinear_summary(reports: list[dict]) -> dict:
+    """Newton's work over the steps of a transient run with saturable materials."""
+    iterations = [r["iterations"] for r in reports]
+    return {"steps": len(reports), "iterations": int(sum(iterations)),
+            "max_iterations_per_step": int(max(iterations)),
+            "converged": all(r["converged"] for r in reports),
+            "residual": float(max(r["residual"] for r in reports))}
 
 
 def series_tables(series: dict, folder: Path) -> list[Path]:

@@ -45,6 +45,7 @@ KINDS: dict[str, Kind] = {
     "resistivity": Kind("resistivity", "ohm*m", "1.72e-8 ohm*m"),
     "resistance": Kind("resistance", "ohm", "0.8 ohm"),
     "flux_density": Kind("flux density", "T", "10 mT"),
+    "field_strength": Kind("magnetic field strength", "A/m", "8 kA/m"),
     "angle": Kind("angle", "deg", "-120 deg"),
     "dimensionless": Kind("plain number", "", "8"),
     "time": Kind("time", "s", "50 us"),

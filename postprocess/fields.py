@@ -106,6 +106,9 @@ def quadrature_fields(solution) -> QuadratureFields:
     j = sigma * driving + js[:, None]
     loss = sigma * np.abs(driving) ** 2  # |J|^2 / sigma where eddy currents flow, 0 elsewhere
     energy = 0.5 * system.nu_q * (np.abs(b[0]) ** 2 + np.abs(b[1]) ** 2)
+    if getattr(system, "energy_q", None) is not None:  # saturable: int H dB from the curve
+        elements, density = system.energy_q
+        energy[elements] = density
     if system.problem.axisymmetric:
         force = np.array([np.real(j * np.conj(b[1])), -np.real(j * np.conj(b[0]))])
     else:

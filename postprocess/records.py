@@ -20,6 +20,7 @@ from whorl.postprocess.moving_loops import moving_loop
 from whorl.postprocess.probes import probe
 from whorl.postprocess.regions import region_totals
 from whorl.postprocess.surface import cached_surface_power, heated_regions
+from whorl.solver.materials import MU0, skin_depth
 from whorl.solver.sources import Massive, Stranded
 from whorl.solver.windings import resistance_shares
 
@@ -42,6 +43,7 @@ def region_record(t) -> dict:
         "area_m2": t.area_m2,
         "peak_loss_density_w_per_m3": t.peak_loss_density_w_per_m3,
         "peak_loss_at_m": list(t.peak_loss_at_m) if t.peak_loss_at_m else None,
+        "peak_flux_density_t": t.peak_flux_density_t,
         **({"radial_load_n": t.radial_load_n, "mean_radial_pressure_pa": t.mean_radial_pressure_pa}
            if t.radial_load_n is not None else {}),
         **({"mechanical_power_w": t.mechanical_power_w}
@@ -114,6 +116,10 @@ def derived_numbers(solution, regions, sources) -> dict:
         m = problem.materials[name]
         if m.conductivity > 0 and solution.frequency_hz > 0:
             skin[name] = m.skin_depth(solution.frequency_hz)
+            if getattr(m, "bh_curve", None) is not None:  # at the most saturated element's
+                elems = problem.mesh.elements(name)      # effective permeability
+                mu_r = 1.0 / (MU0 * float(np.max(solution.system.nu[elems])))
+                skin[name] = skin_depth(solution.frequency_hz, m.conductivity, mu_r)
     fed = {r for s in problem.sources for r in (*getattr(s, "regions", ()),
                                                  *getattr(s, "return_regions", ()))}
     work = sum(t.loss_w for n, t in regions.items() if n not in fed)
@@ -185,6 +191,8 @@ def solution_record(solution, points=None, loops=None) -> dict:
         },
         "derived": derived_numbers(solution, regions, sources),
     }
+    if getattr(solution, "nonlinear", None) is not None:
+        record["nonlinear"] = dict(solution.nonlinear)
     for s in solution.problem.sources:  # a source's force: the sum over its conductors
         if s.name in record["sources"]:
             parts = [regions[r].force_n for r in (*s.regions, *s.return_regions)]

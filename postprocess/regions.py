@@ -42,6 +42,19 @@ class RegionTotals:
     mean_radial_pressure_pa: float | None = None
     mechanical_power_w: float | None = None
     torque_nm: float | None = None
+    peak_flux_density_t: float = 0.0
+
+
+def peak_flux_density(solution, q) -> np.ndarray:
+    """Per element, the largest |B(t)| over its quadrature points (T): for RMS phasors the
+    peak of the rotating or pulsating field, sqrt(|Bx|^2 + |By|^2 + |Bx^2 + By^2|); for a
+    static or transient state (instantaneous values) |B|."""
+    bx, by = q.b[0], q.b[1]
+    if solution.frequency_hz > 0:
+        mag = np.abs(bx) ** 2 + np.abs(by) ** 2 + np.abs(bx * bx + by * by)
+    else:
+        mag = np.real(bx) ** 2 + np.real(by) ** 2
+    return np.sqrt(mag).max(axis=1)
 
 
 def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
@@ -67,6 +80,7 @@ def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
         fx = per_region((q.force[0] * q.dv).sum(1))
     fy = per_region((q.force[1] * q.dv).sum(1))
     peak = q.loss.max(axis=1)
+    b_peak = peak_flux_density(solution, q)
     moving = moving_regions(solution.problem)
     mechanical = None
     if moving and q.velocity is not None:
@@ -97,5 +111,6 @@ def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
                                 * q.dv[elems]).sum())
         out[name] = RegionTotals(name, complex(current[i]), float(loss[i]), float(energy[i]),
                                  (float(fx[i]), float(fy[i])), float(area[i]), top, at,
-                                 load, pressure, mech, torque)
+                                 load, pressure, mech, torque,
+                                 float(b_peak[elems].max()) if elems.size else 0.0)
     return out

@@ -160,6 +160,13 @@ def summary_text(results: dict) -> str:
         lines.append(f"frequency {_eng(sol['frequency_hz'], 'Hz')}: total loss "
                      f"{_eng(totals['loss_w'], 'W')}{of_which}, stored energy "
                      f"{_eng(totals['magnetic_energy_j'], 'J')}")
+        nl = sol.get("nonlinear")
+        if nl:
+            what = ("harmonic solutions (effective permeability)" if sol["frequency_hz"] > 0
+                    else "Newton steps")
+            lines.append(f"  saturable steel: {nl['iterations']} {what}, "
+                         f"{'converged' if nl['converged'] else 'NOT converged'} "
+                         f"(residual {nl['residual']:.1e})")
         if sol["sources"]:
             delivered = sum(s["power_w"] for s in sol["sources"].values())
             lines.append(f"  power at the terminals {_eng(delivered, 'W')}")

@@ -10,7 +10,7 @@ from __future__ import annotations
 import numpy as np
 
 from whorl.solver.circuits import eddy_regions
-from whorl.solver.materials import MU0
+from whorl.solver.constants import MU0
 
 
 def element_regions(problem) -> dict[str, np.ndarray]:
@@ -30,26 +30,35 @@ def _temperature(problem, elems):
 
 
 def reluctivity(problem) -> np.ndarray:
-    """1/mu per element in m/H."""
-    nu = np.empty(problem.mesh.mesh.t.shape[1])
+    """1/mu per element in m/H: at the element's temperature when the problem has
+    temperatures (Curie transition included), then with ``problem.element_magnetisation``
+    m applied when given (mu_r_eff = 1 + m (mu_r - 1))."""
+    mu_r = np.empty(problem.mesh.mesh.t.shape[1])
     for name, elems in element_regions(problem).items():
         material = problem.materials[name]
         t = _temperature(problem, elems)
         if t is None:
-            nu[elems] = material.reluctivity
+            mu_r[elems] = material.relative_permeability
         else:
-            nu[elems] = 1.0 / (MU0 * material.relative_permeability_at(t))
-    return nu
+            mu_r[elems] = material.relative_permeability_at(t)
+    m = getattr(problem, "element_magnetisation", None)
+    if m is not None:
+        mu_r = 1.0 + np.clip(np.asarray(m, float), 0.0, 1.0) * (mu_r - 1.0)
+    return 1.0 / (MU0 * mu_r)
 
 
 def magnetisation(problem) -> np.ndarray:
     """Multiplier m in [0, 1] of the magnetisation per element (1 without temperatures):
-    B = mu0 H + m (B_material(H) - mu0 H)."""
+    B = mu0 H + m (B_material(H) - mu0 H); times ``problem.element_magnetisation`` when
+    given."""
     m = np.ones(problem.mesh.mesh.t.shape[1])
     for name, elems in element_regions(problem).items():
         t = _temperature(problem, elems)
         if t is not None:
             m[elems] = problem.materials[name].magnetisation_at(t)
+    extra = getattr(problem, "element_magnetisation", None)
+    if extra is not None:
+        m = m * np.clip(np.asarray(extra, float), 0.0, 1.0)
     return m
 
 

@@ -8,8 +8,11 @@ import time
 import numpy as np
 
 from whorl.solver import frequency_rom, linalg
+from whorl.solver.effective import EffectiveSystem
 from whorl.solver.errors import SolveError
+from whorl.solver.newton import NonlinearSystem
 from whorl.solver.reduction import reduce
+from whorl.solver.saturable import has_saturable
 from whorl.solver.solution import Solution
 from whorl.solver.system import assemble
 
@@ -38,6 +41,8 @@ def solve_system(system, frequencies, backend: str = "auto", progress=None,
             return _solve_reduced(system, frequencies, backend, progress, tolerance)
         log.info("reduced frequency sweep not used: %s; every frequency is solved in full", why)
     factorize = linalg.session(factorize)  # keeps the symbolic analysis across frequencies
+    if has_saturable(system.problem):
+        return _solve_saturable(system, frequencies, name, factorize, progress)
     red = reduce(system)
     solutions, convergence = [], []
     t0 = time.perf_counter()
@@ -60,6 +65,31 @@ def solve_system(system, frequencies, backend: str = "auto", progress=None,
     if convergence:
         info["convergence"] = convergence
     return solutions, info
+
+
+def _solve_saturable(system, frequencies, name, factorize, progress):
+    """Each frequency its own nonlinear problem: Newton at 0 Hz, effective permeability
+    otherwise (see :mod:`.newton` and :mod:`.effective`)."""
+    t0 = time.perf_counter()
+    solutions, static, effective = [], None, None
+    for i, f in enumerate(frequencies):
+        omega = 2 * np.pi * float(f)
+        _check_static(system, omega)
+        if progress:
+            progress(f"solving {i + 1}/{len(frequencies)} at {f:g} Hz (saturable materials)")
+        if omega == 0:
+            static = static or NonlinearSystem(system, factorize)
+            x, report = static.solve(system.rhs(0.0), what="the static field")
+            solutions.append(Solution(static.state_system(x), 0.0, x.astype(complex),
+                                      nonlinear={**report.record(), "method": "Newton"}))
+        else:
+            effective = effective or EffectiveSystem(system, factorize)
+            solutions.append(effective.solve(float(f)))
+    elapsed = time.perf_counter() - t0
+    log.info("solved %d frequencies (saturable) with %s in %.2f s", len(frequencies), name,
+             elapsed)
+    unknowns = int((static or effective).red.free.size)
+    return solutions, {"backend": name, "solve_s": elapsed, "unknowns": unknowns}
 
 
 def _solve_reduced(system, frequencies, backend, progress, tolerance):

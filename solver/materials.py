@@ -1,4 +1,4 @@
-"""Linear, isotropic materials and the built-in library.
+"""Isotropic materials (linear, or saturable with a B-H curve) and the built-in library.
 
 Plain values are at 20 degC; a property may also be a table over temperature
 (:class:`~whorl.solver.tables.PropertyTable`), evaluated per element in heating
@@ -14,19 +14,20 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from whorl.solver.bh import frohlich_kennelly
+from whorl.solver.constants import MU0
 from whorl.solver.tables import PropertyTable, at_temperature, magnetisation_factor
 
-MU0 = 4e-7 * math.pi
-"""Permeability of free space in H/m (the classical defined value; the 2019 SI
-value differs by under 1e-9 relative)."""
+__all__ = ["BUILTIN", "MU0", "Material", "skin_depth"]
 
 
 @dataclass(frozen=True)
 class Material:
-    """A linear material.
+    """A material: linear, or saturable when it has a B-H curve.
 
     conductivity : S/m (0 for an insulator)
-    relative_permeability : dimensionless, > 0
+    relative_permeability : dimensionless, > 0; for a material with a B-H curve the
+        curve's initial relative permeability (its slope at the origin over mu0)
     source : where the values come from (shown by ``whorl materials``)
 
     Temperature-dependent and thermal data (all optional; heating studies):
@@ -40,6 +41,8 @@ class Material:
     specific_heat : J/(kg K), a float or a PropertyTable
     emissivity : of its surfaces, 0..1, a float or a PropertyTable
     thermal_source : where the thermal and temperature data come from
+    bh_curve : :class:`~whorl.solver.bh.BHCurve` or None (linear); a B-H curve makes the
+        material saturable (issue 11)
     """
 
     name: str
@@ -84,6 +87,12 @@ class Material:
         """Names of the thermal properties a heated region needs but this material lacks."""
         return [k for k in ("thermal_conductivity", "density", "specific_heat")
                 if getattr(self, k) is None]
+    bh_curve: object | None = None
+
+    @property
+    def saturable(self) -> bool:
+        """True when the material has a B-H curve."""
+        return self.bh_curve is not None
 
     @property
     def permeability(self) -> float:
@@ -196,7 +205,8 @@ BUILTIN: dict[str, Material] = {
                  "resistivity 1.6e-7 ohm*m at 20 degC, medium-carbon steel such as AISI 1045 "
                  "(ASM Handbook vol. 1; value from memory); mu_r = 100 is a representative "
                  "linear value below saturation (common practice): real steel is nonlinear "
-                 "and loses its permeability above the Curie point (about 770 degC)",
+                 "and loses its permeability above the Curie point (about 770 degC); "
+                 "medium-carbon-steel-bh is the same steel with a B-H curve",
                  conductivity_table=_resistivity((20, 100, 200, 400, 600, 700, 800, 900, 1000),
                                                  (0.16, 0.22, 0.29, 0.46, 0.69, 0.84, 1.03,
                                                   1.12, 1.17)),
@@ -207,6 +217,32 @@ BUILTIN: dict[str, Material] = {
                  specific_heat=_table((20, 200, 400, 600, 700, 750, 770, 800, 900, 1000),
                                       (460, 520, 580, 700, 800, 900, 900, 700, 620, 640)),
                  emissivity=0.8, thermal_source=_STEEL_THERMAL),
+        Material("low-carbon-steel-bh", 1 / 1.4e-7, 1500.0,
+                 "typical values, not a maker's data: low-carbon steel such as AISI 1010, "
+                 "resistivity 1.4e-7 ohm*m (ASM Handbook vol. 1; value from memory); B-H curve "
+                 "from the Frohlich-Kennelly law B = mu0 H + Js H/(Hk + H) with saturation "
+                 "polarisation Js = 2.1 T and initial relative permeability 1500 "
+                 "(Hk = 1.11 kA/m), typical of annealed low-carbon steel (Bozorth, "
+                 "Ferromagnetism, 1951; values from memory)",
+                 bh_curve=frohlich_kennelly(2.1, 1500.0, source="Frohlich-Kennelly law, "
+                                            "Js = 2.1 T, initial mu_r 1500")),
+        Material("medium-carbon-steel-bh", 1 / 1.6e-7, 600.0,
+                 "typical values, not a maker's data: medium-carbon steel such as AISI 1045, "
+                 "resistivity 1.6e-7 ohm*m (ASM Handbook vol. 1; value from memory); B-H "
+                 "curve from the Frohlich-Kennelly law B = mu0 H + Js H/(Hk + H) with "
+                 "Js = 2.0 T and initial relative permeability 600 (Hk = 2.66 kA/m), typical "
+                 "of normalised medium-carbon steel (Bozorth, Ferromagnetism, 1951; values "
+                 "from memory)",
+                 bh_curve=frohlich_kennelly(2.0, 600.0, source="Frohlich-Kennelly law, "
+                                            "Js = 2.0 T, initial mu_r 600")),
+        Material("ferritic-stainless-bh", 1 / 6.0e-7, 500.0,
+                 "typical values, not a maker's data: ferritic stainless steel such as AISI "
+                 "430, resistivity 6.0e-7 ohm*m (ASM Handbook vol. 1; value from memory); B-H "
+                 "curve from the Frohlich-Kennelly law B = mu0 H + Js H/(Hk + H) with "
+                 "Js = 1.5 T and initial relative permeability 500 (Hk = 2.39 kA/m) "
+                 "(values from memory)",
+                 bh_curve=frohlich_kennelly(1.5, 500.0, source="Frohlich-Kennelly law, "
+                                            "Js = 1.5 T, initial mu_r 500")),
         Material("water", 0.05, 1.0,
                  "tap water, 0.005 to 0.05 S/m; the upper end is taken (common practice)",
                  thermal_conductivity=0.6, density=998.0, specific_heat=4182.0,

@@ -34,6 +34,10 @@ class Problem:
         tables and Curie points. None: every material takes its plain values.
     motions : tuple of Translation, Rotation
         Conductors in steady rigid motion (:mod:`.motion`).
+    element_magnetisation : ndarray or None
+        Per element, a multiplier m in [0, 1] of the magnetisation (a Curie
+        transition): B = mu0 H + m (B_curve(H) - mu0 H), and for a linear material
+        mu_r_eff = 1 + m (mu_r - 1). None: m = 1 everywhere.
     """
 
     mesh: TaggedMesh
@@ -45,6 +49,7 @@ class Problem:
     shorted: tuple = ()
     element_temperature_k: object = None
     motions: tuple = ()
+    element_magnetisation: object = None
 
     @property
     def axisymmetric(self) -> bool:

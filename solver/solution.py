@@ -32,6 +32,7 @@ class Solution:
     x: np.ndarray
     x_rate: np.ndarray | None = None  # dx/dt of a transient state; None for phasors
     time_s: float | None = None
+    nonlinear: dict | None = None  # saturable materials: iterations, converged, residual
 
     @property
     def rate(self) -> np.ndarray:

@@ -72,6 +72,9 @@ class System:
     coupling: np.ndarray | None = None  # (N, branches): c_b, int_b sigma v (x r^0)
     conductance: np.ndarray | None = None  # (branches,): G_b
     motion: object | None = None  # motion.MotionBlocks of a model with moving conductors
+    # saturable materials: (elements, energy density at their quadrature points, J/m^3)
+    # of one solved state, used instead of nu |B|^2 / 2 there (see solver.newton)
+    energy_q: tuple | None = None
 
     @property
     def n_field(self) -> int:

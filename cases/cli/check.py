@@ -151,7 +151,9 @@ def summary(case) -> list[str]:
         lines.append("  boundary   " + ", ".join(f"{side} {cond.kind}" for side, cond in
                                                  case.boundary.items()))
     lines.append("  materials  " + ", ".join(
-        f"{m.name} ({m.conductivity:.4g} S/m, mu_r {m.relative_permeability:g})"
+        f"{m.name} ({m.conductivity:.4g} S/m, "
+        + (f"B-H curve, initial mu_r {m.relative_permeability:.4g})" if m.bh_curve is not None
+           else f"mu_r {m.relative_permeability:g})")
         for m in case.materials.values()))
     for s in case.sources:
         supply = case.supplies.get(s.name)

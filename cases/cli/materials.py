@@ -20,7 +20,9 @@ def rows() -> list[tuple[str, str, str, str, str]]:
     for m in BUILTIN.values():
         sigma = f"{m.conductivity:.4g}" if m.conductivity > 0 else "0"
         rho = f"{1 / m.conductivity:.4g}" if m.conductivity > 0 else "-"
-        out.append((m.name, sigma, rho, f"{m.relative_permeability:g}", m.source))
+        mu = ("B-H curve" if m.bh_curve is not None
+              else f"{m.relative_permeability:g}")
+        out.append((m.name, sigma, rho, mu, m.source))
     return out
 
 
@@ -39,7 +41,9 @@ def handle(args) -> int:
               + "  " + first)
         for more in rest:
             print(" " * indent + more)
-    print("\nValues at 20 degC, linear. Define your own with [material.NAME] in a case file.")
+    print("\nValues at 20 degC. Materials with a B-H curve are saturable (typical values, not a "
+          "maker's data);\nthe others are linear. Define your own with [material.NAME] in a "
+          "case file.")
     print("\nThermal data and temperature tables (heating studies; typical values):")
     for m in BUILTIN.values():
         text = thermal_text(m)

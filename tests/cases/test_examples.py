@@ -47,6 +47,9 @@ def test_shaft_end_heater(tmp_path, capsys):
     for name in ("report.html", "fields.vtu", "flux-lines.png", "line_radial.csv", "run.log"):
         assert (folder / name).stat().st_size > 0
     assert "power factor" in out and "Caution" in out
+    # The shaft saturates: effective permeability converged, no warning about its flux.
+    assert sol["nonlinear"]["converged"]
+    assert not any("'shaft'" in w for w in results.get("warnings", []))
 
 
 def test_busbar_cover_plate(tmp_path, capsys):
@@ -154,3 +157,21 @@ def test_shoulder_hardening_from_a_drawing(tmp_path, capsys):
     assert src["power_w"] == pytest.approx(sol["totals"]["loss_w"], rel=1e-6)
     assert sol["regions"]["shaft"]["loss_w"] > 0.5 * sol["totals"]["loss_w"]
     assert (folder / "loss-density.png").stat().st_size > 0
+
+
+def test_dc_choke_saturation(tmp_path, capsys):
+    """The saturated choke: Newton converged; the flux density in the gap stays on the
+    curve's scale (a linear core of the same initial permeability would put about 7 T
+    there); DC terminal power is the winding's copper loss, I^2 R (Joule)."""
+    results, folder, out = run("dc-choke-saturation", tmp_path, capsys)
+    sol = results["solutions"][0]
+    assert sol["nonlinear"]["converged"] and sol["nonlinear"]["method"] == "Newton"
+    assert results.get("warnings", []) == []
+    b = [complex(*c) for c in sol["points"]["gap"]["flux_density_t"]]
+    gap_b = (abs(b[0]) ** 2 + abs(b[1]) ** 2) ** 0.5
+    assert 1.0 < gap_b < 2.2
+    for name in ("post", "shell", "top", "bottom"):
+        assert sol["regions"][name]["peak_flux_density_t"] < 2.6
+    src = sol["sources"]["coil"]
+    assert src["power_w"] == pytest.approx(sol["totals"]["loss_w"], rel=1e-6)
+    assert "saturable steel" in out and "Newton steps" in out
