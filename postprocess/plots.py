@@ -19,6 +19,7 @@ import os
 import numpy as np
 
 from whorl.postprocess.meshplot import BACKGROUND_COLOUR, PALETTE, unit_name
+from whorl.postprocess.saturation import saturation_marks
 from whorl.postprocess.vtu import cell_means, visible_mesh
 
 #: Registered field plot kinds: name -> function(solution, path, **options).
@@ -26,6 +27,7 @@ PLOTS: dict = {}
 
 OUTLINE_COLOUR = "#8f8f8f"
 LINE_COLOUR = "#1f3a5f"
+SATURATION_COLOUR = "#d8432b"  # cells above a steel's saturation level
 MAPS = {"flux-density": "cividis", "current-density": "viridis", "loss-density": "magma"}
 LOG_SPAN = 1e3  # loss maps go logarithmic when max/min exceeds this
 LOG_FLOOR = 1e-6  # and show values down to this fraction of the maximum
@@ -142,8 +144,24 @@ class _View:
         from mpl_toolkits.axes_grid1 import make_axes_locatable
 
         bar = make_axes_locatable(self.ax).append_axes("right", size="4%", pad=0.12)
-        self.fig.colorbar(art, cax=bar, label=label)
+        self.bar = self.fig.colorbar(art, cax=bar, label=label)
         return art
+
+    def edges_between(self, flag, colour, width=1.2, style="solid"):
+        """Draw the mesh edges between visible cells where ``flag`` (one per mesh element)
+        differs, and where a flagged cell meets the edge of the visible mesh."""
+        from matplotlib.collections import LineCollection
+
+        mesh = self.tagged.mesh
+        shown = np.zeros(mesh.t.shape[1], dtype=bool)
+        shown[self.vis.elements] = True
+        flag = np.asarray(flag, dtype=bool) & shown
+        e0, e1 = mesh.f2t
+        f1 = np.where(e1 >= 0, flag[np.maximum(e1, 0)], False)
+        edge = flag[e0] != f1
+        xy = mesh.p.T / self.tagged.unit_m
+        self.ax.add_collection(LineCollection(xy[mesh.facets[:, edge].T], colors=colour,
+                                              linewidths=width, linestyles=style))
 
     def note(self, text):
         self.ax.text(0.5, 0.5, text, transform=self.ax.transAxes, ha="center", va="center",
@@ -220,11 +238,33 @@ def _scale(values, mask=None):
 @register_plot("flux-density")
 def plot_flux_density(solution, path, dpi=120):
     """Map of the cell RMS magnitude of B (T), logarithmic when it spans more than three
-    decades."""
+    decades.
+
+    In a saturable material (one with a B-H curve) the cells at or above its saturation
+    level (:mod:`whorl.postprocess.saturation`) are outlined in ``SATURATION_COLOUR`` and the
+    level is drawn across the colour bar; the legend gives the level in RMS and peak terms.
+    """
     view = _View(solution, "|B| RMS")
-    b = cell_means(solution).b_rms[view.vis.elements]
-    norm, b, log = _scale(b)
+    b_all = cell_means(solution).b_rms
+    norm, b, log = _scale(b_all[view.vis.elements])
     view.cells(b, None, MAPS["flux-density"], f"|B| RMS [T]{log}", norm)
+    handles = []
+    for mark, style in zip(saturation_marks(solution, b_all), ("solid", "dashed", "dotted",
+                                                                "dashdot") * 4, strict=False):
+        from matplotlib.lines import Line2D
+
+        view.edges_between(mark.saturated, SATURATION_COLOUR, style=style)
+        if norm.vmin <= mark.level_t <= norm.vmax:
+            view.bar.ax.axhline(mark.level_t, color=SATURATION_COLOUR, linewidth=1.5,
+                                linestyle=style)
+        rms = " RMS" if solution.frequency_hz > 0 else ""
+        where = "" if mark.saturated.any() else ", not reached"
+        text = (f"saturation level of {mark.material}: {mark.level_t:.3g} T{rms}"
+                + (f" ({mark.peak_level_t:.3g} T peak)" if rms else "") + where)
+        handles.append(Line2D([], [], color=SATURATION_COLOUR, linestyle=style, label=text))
+    if handles:
+        view.ax.legend(handles=handles, loc="upper center", bbox_to_anchor=(0.5, -0.12),
+                       ncol=1, fontsize=8, frameon=False)
     return view.save(path, dpi)
 
 

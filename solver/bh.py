@@ -45,6 +45,8 @@ from scipy.interpolate import CubicHermiteSpline, PchipInterpolator
 
 from whorl.solver.constants import MU0
 
+SATURATION_FRACTION = 0.9  # see BHCurve.saturation_level
+
 
 class CurveError(ValueError):
     """A B-H curve that cannot be used; ``row`` is the 1-based data row (None: the whole
@@ -196,6 +198,25 @@ class BHCurve:
     def relative_permeability_at(self, h: float) -> float:
         """Secant relative permeability B/(mu0 H) at field strength ``h`` (A/m)."""
         return float(self.flux_density(np.array([h]))[0] / (MU0 * h))
+
+    def saturation_level(self, fraction: float = SATURATION_FRACTION) -> float:
+        """The flux density (T) at which the polarisation J = B - mu0 H reaches ``fraction``
+        of its value at the last data point (which stands for the saturation polarisation).
+
+        With the default 0.9 it marks where the steel is close to saturated: for the
+        Frohlich-Kennelly law that is H = 9 H_k, where the differential permeability of the
+        magnetisation has fallen to 1 % of its initial value (the choice of the level is this
+        project's; it is a picture's guide, not a material property).
+        """
+        from scipy.optimize import brentq
+
+        def polarisation(h):
+            return float(self.flux_density(np.array([h]))[0]) - MU0 * h
+
+        target = fraction * polarisation(float(self.h[-1]))
+        h = brentq(lambda x: polarisation(x) - target, 0.0, float(self.h[-1]), xtol=1e-9,
+                   rtol=1e-10)
+        return polarisation(h) + MU0 * h
 
     def scaled(self, m: float) -> BHCurve:
         """The curve with its magnetisation times ``m``: B = mu0 H + m (B(H) - mu0 H)."""
