@@ -24,7 +24,7 @@ def add_args(parser) -> None:
 
 
 def handle(args) -> int:
-    case = load_case(args.case, parse_set_args(args.overrides))
+    case = load_case(args.case, parse_set_args(args.overrides), args.max_points)
     elements = check_mesh_estimate(case, args.max_elements)
     lines = summary(case)
     lines.insert(-1, f"  mesh       about {elements:,.0f} elements estimated (limit "

@@ -5,6 +5,7 @@ from __future__ import annotations
 import argparse
 import math
 
+from whorl.cases.limits import MAX_SWEEP_POINTS
 from whorl.cases.meshing import DEFAULT_MESH_TIME_LIMIT
 from whorl.meshes.estimate import DEFAULT_MAX_ELEMENTS
 
@@ -30,10 +31,17 @@ def _seconds(text: str) -> float:
 
 
 def add_limit_args(parser, mesh_time: bool = True) -> None:
-    """``--max-elements`` and (optionally) ``--mesh-time-limit``."""
+    """``--max-elements``, ``--max-points`` and (optionally) ``--mesh-time-limit``.
+
+    ``--max-points`` is on every command that reads a case, because every one of them
+    checks a case's ``[sweep]`` (each value is tried) and refuses one that is too large.
+    """
     parser.add_argument("--max-elements", type=_count, default=DEFAULT_MAX_ELEMENTS,
                         metavar="N", help="refuse a case whose mesh is estimated to need more "
                                           f"elements (default {DEFAULT_MAX_ELEMENTS:,})")
+    parser.add_argument("--max-points", type=_count, default=MAX_SWEEP_POINTS,
+                        metavar="N", help="refuse a case whose [sweep] has more points "
+                                          f"(default {MAX_SWEEP_POINTS:,})")
     if mesh_time:
         parser.add_argument("--mesh-time-limit", type=_seconds,
                             default=DEFAULT_MESH_TIME_LIMIT, metavar="SECONDS",

@@ -23,7 +23,7 @@ def add_args(parser) -> None:
 
 
 def handle(args) -> int:
-    case = load_case(args.case, parse_set_args(args.overrides))
+    case = load_case(args.case, parse_set_args(args.overrides), args.max_points)
     geometry = model.sized_geometry(case)
     check_mesh_estimate(case, args.max_elements, geometry)
     root = output_root(case, args.out)

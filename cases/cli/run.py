@@ -29,7 +29,7 @@ def add_args(parser) -> None:
 def handle(args) -> int:
     # the reported total is the whole command's time, from the start of main()
     started = getattr(args, "started", None) or time.perf_counter()
-    case = load_case(args.case, parse_set_args(args.overrides))
+    case = load_case(args.case, parse_set_args(args.overrides), args.max_points)
     if args.solver:
         if args.solver not in ("auto", *linalg.BACKENDS):
             raise CaseError("--solver", f"unknown linear solver {args.solver!r}; known: "

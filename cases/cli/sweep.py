@@ -10,7 +10,7 @@ from whorl.cases.cli.common import add_case_args, add_limit_args
 from whorl.cases.errors import CaseError
 from whorl.cases.parameters import parse_set_args
 from whorl.cases.run import CAUTION
-from whorl.cases.sweep import DEFAULT_MAX_POINTS, run_sweep, sweep_status
+from whorl.cases.sweep import run_sweep, sweep_status
 
 HELP = "run the [sweep] points of a case (parallel, resumable), or show a sweep's progress"
 
@@ -65,9 +65,6 @@ def add_args(parser) -> None:
                              "case's [sweep] table)")
     parser.add_argument("--status", action="store_true",
                         help="print the progress of a running or stopped sweep; start nothing")
-    parser.add_argument("--max-points", type=_positive_int, default=DEFAULT_MAX_POINTS,
-                        metavar="N", help=f"refuse sweeps with more points (default "
-                                          f"{DEFAULT_MAX_POINTS})")
 
 
 class _Bar:

@@ -123,6 +123,10 @@ def test_changed_case_is_refused_until_restart(tmp_path):
     assert third.ran == 3 and third.counts["done"] == 3
     with pytest.raises(CaseError, match="3 points, more than the maximum of 2"):
         run_sweep(path, max_points=2)
+    # every command that reads the case takes the limit its message names
+    for command in ("check", "run", "mesh", "sweep"):
+        assert main([command, str(path), "--max-points", "2"]) == 2
+    assert main(["check", str(path), "--max-points", "3"]) == 0
 
 
 def test_frequency_only_sweep_meshes_once_and_current_sweep_uses_the_cache(tmp_path):
