@@ -187,10 +187,11 @@ def motional_current(v, w):
 
 def streamline_length(basis, vel) -> np.ndarray:
     """Element length along the velocity, 2 |v| / sum_i |v . grad lambda_i| over the
-    element's vertex (P1) functions, at the quadrature points (E, Q)."""
+    element's vertex (P1) functions, at the quadrature points (E, Q) of the basis's
+    elements (all, or its ``tind``)."""
     mesh = basis.mesh
-    p, t = mesh.p, mesh.t
-    x, y = p[0][t], p[1][t]
+    t = mesh.t if basis.tind is None else mesh.t[:, basis.tind]
+    x, y = mesh.p[0][t], mesh.p[1][t]
     twice = (x[1] - x[0]) * (y[2] - y[0]) - (x[2] - x[0]) * (y[1] - y[0])
     gx = np.array([y[1] - y[2], y[2] - y[0], y[0] - y[1]]) / twice  # (3, E)
     gy = np.array([x[2] - x[1], x[0] - x[2], x[1] - x[0]]) / twice
@@ -256,26 +257,34 @@ class MotionBlocks:
 
 
 def assemble_motion(problem, basis, form, sigma, nu, brs, p0) -> MotionBlocks:
-    """The motion's blocks for ``problem`` on ``basis`` (sigma, nu per element)."""
+    """The motion's blocks for ``problem`` on ``basis`` (sigma, nu per element).
+
+    The forms are integrated over the moving elements only (every term carries the
+    velocity, zero elsewhere), so the cost follows the size of the moving parts, not of
+    the model; ``velocity_q`` is returned on all elements for postprocessing.
+    """
     x = basis.mapping.F(basis.X)  # (2, E, Q)
-    vel = element_velocity(problem, x)
+    vel_all = element_velocity(problem, x)
     nel = problem.mesh.mesh.t.shape[1]
     moving_mask = np.zeros(nel, dtype=bool)
     for r in moving_regions(problem):
         moving_mask[problem.mesh.elements(r)] = True
-    sigma_q = np.asarray(p0(basis, sigma))
-    nu_q = np.asarray(p0(basis, nu))
-    rho = form.weight(x)
-    field = asm(convection, basis, sigma=sigma_q, vx=vel[0], vy=vel[1], rho=rho)
-    tau, summary = stabilisation_weight(basis, vel, sigma_q, nu_q, problem.order,
-                                        problem.motions, moving_mask)
+    moving = np.flatnonzero(moving_mask)
+    mb = basis.with_elements(moving)
+    vel = vel_all[:, moving]
+    sigma_q = np.asarray(p0(basis, sigma))[moving]
+    nu_q = np.asarray(p0(basis, nu))[moving]
+    rho = form.weight(x[:, moving])
+    field = asm(convection, mb, sigma=sigma_q, vx=vel[0], vy=vel[1], rho=rho)
+    tau, summary = stabilisation_weight(mb, vel, sigma_q, nu_q, problem.order,
+                                        problem.motions, np.ones(moving.size, dtype=bool))
     nf, nb = basis.N, len(brs)
     coupling = np.zeros((nf, nb))
     mass = None
     if summary["stabilised_elements"]:
-        field = field + asm(streamline_convection, basis, sigma=sigma_q, vx=vel[0], vy=vel[1],
+        field = field + asm(streamline_convection, mb, sigma=sigma_q, vx=vel[0], vy=vel[1],
                             rho=rho, tau=tau)
-        mass = asm(streamline_mass, basis, sigma=sigma_q, vx=vel[0], vy=vel[1], rho=rho,
+        mass = asm(streamline_mass, mb, sigma=sigma_q, vx=vel[0], vy=vel[1], rho=rho,
                    tau=tau)
         log.info("motion: streamline upwinding on (SUPG, Brooks and Hughes 1982) in %d of %d "
                  "moving elements; largest mesh Peclet number %.3g",
@@ -286,17 +295,20 @@ def assemble_motion(problem, basis, form, sigma, nu, brs, p0) -> MotionBlocks:
                       "(> 1) with stabilisation off: the solution may oscillate; refine the "
                       "moving regions or let stabilisation act", stacklevel=2)
     current = np.zeros((nb, nf))
+    where = np.full(nel, -1)
+    where[moving] = np.arange(moving.size)
     for i, br in enumerate(brs):
         for r in br.regions:
             if r not in moving_regions(problem):
                 continue
             elems = problem.mesh.elements(r)
             rb = basis.with_elements(elems)
-            vr = vel[:, elems]
-            s_r = sigma_q[elems]
+            at = where[elems]  # the region's elements among the moving ones
+            vr = vel[:, at]
+            s_r = sigma_q[at]
             current[i] += asm(motional_current, rb, sigma=s_r, vx=vr[0], vy=vr[1])
             if summary["stabilised_elements"]:
                 coupling[:, i] += asm(streamline_coupling, rb, sigma=s_r, vx=vr[0], vy=vr[1],
-                                      tau=tau[elems])
+                                      tau=tau[at])
     return MotionBlocks(sp.csr_matrix(field), None if mass is None else sp.csr_matrix(mass),
-                        coupling, current, vel, summary)
+                        coupling, current, vel_all, summary)

@@ -5,8 +5,8 @@ An invented scenario: the aluminium strip of ``cases/examples/strip-induction-li
 
 - at rest (no motion): assembly of K, M and the coupling blocks, then one factorisation;
 - moving at 10 m/s (Galerkin: mesh Peclet number below 1) and at 200 m/s (streamline
-  upwinding on in the strip): the same plus the motion's blocks (one more assembly, two
-  with upwinding), and an unsymmetric factorisation instead of a symmetric one.
+  upwinding on in the strip): the same plus the motion's blocks (integrated over the
+  moving elements only), and an unsymmetric factorisation instead of a symmetric one.
 
 It prints assemble and solve times of each, the extra assembly time against one
 assembly of the stiffness matrix alone (measured in the same run), and the ratios to the
