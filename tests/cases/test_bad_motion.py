@@ -110,6 +110,9 @@ BAD = {
                                  "motion[1].velocity[1]"),
     "billet shorter than the model": (AXI.replace("size = [10, 100]", "size = [10, 60]")
                                       + BILLET, "motion[1].velocity"),
+    "a strip with rounded ends": (PLANAR.replace("size = [100, 2]\n", "size = [100, 2]\n"
+                                                 "fillet = 0.5\n", 1) + STRIP,
+                                  "motion[1].velocity"),
     "loop velocity unit": (PLANAR + '\n[[loop]]\nname = "l"\nfrom = [0, 30]\nto = [0, 40]\n'
                            'velocity = ["1 m/s", "2 A"]\n', "loop[1].velocity[2]"),
 }
@@ -134,3 +137,4 @@ def test_bad_motion(tmp_path, capsys, text, key):
     assert status == 2, out.out
     assert out.err.startswith("whorl: bad input: ")
     assert f" {key}" in out.err or f"{key}:" in out.err, out.err
+    assert "cannot check" not in out.err  # every shape is checked, drawn ones too
