@@ -289,8 +289,6 @@ def write_surface_power(case, solutions, folder: Path) -> tuple[list, dict]:
         tag = "" if len(solutions) == 1 else "_" + at.replace(" ", "")
         for name in heated_regions(sol.problem):
             sp = cached_surface_power(sol, name)
-            if sp is None:
-                continue
             files.append(write_csv(folder / f"surface_{name}{tag}.csv",
                                    *surface_rows(sp, case.axisymmetric)))
             if case.output.plots:

@@ -59,20 +59,38 @@ def _locate(basis, points, exclude=None):
 
 def probe(solution, points_m) -> Probe:
     """Evaluate the solution at ``points_m`` (2, P) in metres."""
-    system = solution.system
-    basis, form = system.basis, system.form
+    basis = solution.system.basis
     points = np.asarray(points_m, dtype=float).reshape(2, -1)
-    npts = points.shape[1]
     kelvin = solution.problem.mesh.kelvin
     exclude = solution.problem.mesh.elements(kelvin.subdomain) if kelvin else None
     cells = _locate(basis, points, exclude)
     inside = cells >= 0
+    ref = np.zeros_like(points)
+    if inside.any():
+        ref[:, inside] = basis.mapping.invF(points[:, inside, None], tind=cells[inside])[:, :, 0]
+    return evaluate(solution, cells, ref, points)
+
+
+def evaluate(solution, cells, ref, x=None) -> Probe:
+    """The solution at reference coordinates ``ref`` (2, P) of elements ``cells`` (P,;
+    -1: no element, values NaN). ``x`` (2, P) are the points in metres; by default the
+    elements' (isoparametric) maps of ``ref``, so points on curved edges lie on the curve.
+    """
+    system = solution.system
+    basis, form = system.basis, system.form
+    cells = np.asarray(cells, dtype=np.int64)
+    npts = cells.size
+    inside = cells >= 0
     a = np.full(npts, np.nan, dtype=complex)
     a_rate = np.full(npts, np.nan, dtype=complex)
     grad = np.full((2, npts), np.nan, dtype=complex)
+    if x is None:
+        x = np.full((2, npts), np.nan)
     if inside.any():
         c = cells[inside]
-        pts = basis.mapping.invF(points[:, inside, None], tind=c)
+        pts = np.asarray(ref, dtype=float)[:, inside, None]  # (2, P, 1): one point per cell
+        if not np.all(np.isfinite(x[:, inside])):
+            x[:, inside] = basis.mapping.F(pts, tind=c)[:, :, 0]
         dofs = basis.element_dofs[:, c]
         coeff = solution.a[dofs]  # (Nbfun, P)
         coeff_rate = solution.a_rate[dofs]
@@ -85,7 +103,6 @@ def probe(solution, points_m) -> Probe:
             rate += coeff_rate[k] * np.asarray(phi)[:, 0]
             g += coeff[k] * phi.grad[:, :, 0]
         a[inside], a_rate[inside], grad[:, inside] = val, rate, g
-    x = points
     bx, by = form.flux_density(a, grad, x)
     b = np.array([bx, by])
     nu = np.where(inside, system.nu[np.maximum(cells, 0)], np.nan)
@@ -99,7 +116,7 @@ def probe(solution, points_m) -> Probe:
         driving = e - np.where(sigma > 0, vel[0] * grad[0] + vel[1] * grad[1], 0)
     j = sigma * driving + np.where(inside, js[cu], np.nan)
     loss = sigma * np.abs(driving) ** 2
-    return Probe(points, a, a_rate, b, nu * b, e, j, loss, inside, grad)
+    return Probe(x, a, a_rate, b, nu * b, e, j, loss, inside, grad)
 
 
 def line_points(start_m, end_m, samples: int) -> np.ndarray:

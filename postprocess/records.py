@@ -202,8 +202,6 @@ def solution_record(solution, points=None, loops=None) -> dict:
     if solution.frequency_hz > 0:
         for name in heated_regions(solution.problem):
             sp = cached_surface_power(solution, name)
-            if sp is None:
-                continue
             peak, at = sp.peak()
             record["regions"][name].update(surface_power_w=sp.total_w,
                                            peak_surface_power_density_w_per_m2=peak,

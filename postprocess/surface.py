@@ -16,7 +16,10 @@ figure induction engineers compare with practice tables (W/cm^2).
 Values are taken at Gauss points of the conductor's boundary edges, walked in
 order along each closed outline: E from the conductor's side, the tangential H
 (continuous across the surface) from the other side where there is one, which
-converges faster than the derivative inside a skin-deep layer.
+converges faster than the derivative inside a skin-deep layer. The points are
+placed in reference coordinates of the elements on both sides of each edge, so on
+curved (isoparametric) elements they lie on the curved surface, and the normal and
+the length element come from the element's map.
 """
 
 from __future__ import annotations
@@ -26,7 +29,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from whorl.postprocess.probes import probe
+from whorl.postprocess.probes import evaluate
 
 GAUSS = 3  # points per boundary edge
 
@@ -59,9 +62,10 @@ class SurfacePower:
         return float(self.density_w_per_m2[k]), (float(self.x[0, k]), float(self.x[1, k]))
 
 
-def boundary_edges(tagged, region: str) -> tuple[np.ndarray, np.ndarray]:
+def boundary_edges(tagged, region: str) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """The region's boundary edges as node pairs (2, F), in order along each closed
-    outline, and the region's element beside each edge."""
+    outline, the region's element beside each edge and the element on the other side
+    (-1 where the model ends)."""
     mesh = tagged.mesh
     inside = np.zeros(mesh.t.shape[1], dtype=bool)
     inside[tagged.elements(region)] = True
@@ -70,6 +74,7 @@ def boundary_edges(tagged, region: str) -> tuple[np.ndarray, np.ndarray]:
     side1 = np.where(f2t[1] >= 0, inside[np.maximum(f2t[1], 0)], False)
     edge = np.nonzero(side0 != side1)[0]
     owner = np.where(side0[edge], f2t[0, edge], f2t[1, edge])
+    other = np.where(side0[edge], f2t[1, edge], f2t[0, edge])
     nodes = mesh.facets[:, edge]
     # walk the edges node to node
     at_node: dict[int, list[int]] = {}
@@ -91,59 +96,82 @@ def boundary_edges(tagged, region: str) -> tuple[np.ndarray, np.ndarray]:
             if not nxt:
                 break
             k, a = nxt[0], b
-    return np.array(pairs, dtype=np.int64).T.reshape(2, -1), owner[order]
+    return (np.array(pairs, dtype=np.int64).T.reshape(2, -1), owner[order], other[order])
+
+
+#: Vertices of the reference triangle (scikit-fem's MeshTri).
+_CORNERS = np.array([[0.0, 1.0, 0.0], [0.0, 0.0, 1.0]])
+
+
+def _edge_reference(mesh, cells, a, b, t):
+    """Reference coordinates (2, F, G) of the points at fractions ``t`` (G,) from node
+    ``a`` to node ``b`` of the edge, in elements ``cells`` (F,), and the reference
+    direction from the edge's middle to the element's third vertex (2, F)."""
+    local = mesh.t[:3, cells]  # (3, F)
+    ia = np.argmax(local == a[None, :], axis=0)
+    ib = np.argmax(local == b[None, :], axis=0)
+    ic = 3 - ia - ib
+    ra, rb, rc = _CORNERS[:, ia], _CORNERS[:, ib], _CORNERS[:, ic]
+    ref = ra[:, :, None] + (rb - ra)[:, :, None] * t[None, None, :]
+    return ref, rc - 0.5 * (ra + rb), rb - ra
 
 
 def surface_power(solution, region: str) -> SurfacePower:
     """Power density entering ``region`` along its outline (see the module)."""
     tagged = solution.problem.mesh
     mesh = tagged.mesh
-    pairs, owner = boundary_edges(tagged, region)
-    p0, p1 = mesh.p[:, pairs[0]], mesh.p[:, pairs[1]]
-    length = np.hypot(*(p1 - p0))
-    # inward normal: perpendicular to the edge, towards the owning element's centroid
-    tangent = (p1 - p0) / length
-    normal = np.array([-tangent[1], tangent[0]])
-    centroid = mesh.p[:, mesh.t[:3, owner]].mean(axis=1)
-    flip = np.sum((centroid - 0.5 * (p0 + p1)) * normal, axis=0) < 0
-    normal[:, flip] *= -1
+    mapping = solution.system.basis.mapping
+    pairs, owner, other = boundary_edges(tagged, region)
+    a, b = pairs
+    nf = a.size
     g, w = np.polynomial.legendre.leggauss(GAUSS)
     t = 0.5 * (g + 1)  # (G,)
-    pts = p0[:, :, None] + (p1 - p0)[:, :, None] * t[None, None, :]  # (2, F, G)
-    # E from a hair inside (the conductor's own element: its voltage term is there);
-    # tangential H, continuous across the surface, from a hair outside where the
-    # field is smooth (inside a skin-deep layer its gradient is steep and the
-    # element's derivative less accurate); inside H where the model ends.
-    nudge = 1e-7 * length[None, :, None] * normal[:, :, None]
-    inner = probe(solution, (pts + nudge).reshape(2, -1))
-    outer = probe(solution, (pts - nudge).reshape(2, -1))
-    e = inner.e.reshape(length.size, GAUSS)
-    h = np.where(outer.inside, outer.h, inner.h).reshape(2, length.size, GAUSS)
+    ref, inward, along = _edge_reference(mesh, owner, a, b, t)
+    cells = np.repeat(owner, GAUSS)
+    flat = ref.reshape(2, -1)
+    pts = mapping.F(flat[:, :, None], tind=cells)[:, :, 0]  # on the (curved) edge
+    jac = mapping.DF(flat[:, :, None], tind=cells)[:, :, :, 0]  # (2, 2, P)
+    dx_dt = np.einsum("ijp,jp->ip", jac, np.repeat(along, GAUSS, axis=1))
+    into = np.einsum("ijp,jp->ip", jac, np.repeat(inward, GAUSS, axis=1))
+    speed = np.hypot(*dx_dt)  # |dx/dt|, m per unit of t
+    normal = np.array([-dx_dt[1], dx_dt[0]]) / speed
+    normal *= np.where(np.sum(normal * into, axis=0) < 0, -1.0, 1.0)
+    # E from the conductor's own element (its voltage term is there); the tangential H,
+    # continuous across the surface, from the element beyond where there is one (the
+    # field is smooth there; inside a skin-deep layer the element's derivative is less
+    # accurate), else from inside. Points of both sides are the same physical points:
+    # the map along a shared edge depends on the edge's nodes only.
+    kelvin = tagged.kelvin
+    beyond = other.copy()
+    if kelvin is not None:
+        beyond[np.isin(beyond, tagged.elements(kelvin.subdomain))] = -1
+    has = beyond >= 0
+    ref_out = np.zeros_like(ref)
+    if has.any():
+        ref_out[:, has] = _edge_reference(mesh, beyond[has], a[has], b[has], t)[0]
+    inner = evaluate(solution, cells, flat, pts.copy())
+    outer = evaluate(solution, np.repeat(beyond, GAUSS), ref_out.reshape(2, -1), pts.copy())
+    e = inner.e
+    h = np.where(outer.inside, outer.h, inner.h)
     if solution.problem.axisymmetric:
         s = np.array([(e * np.conj(h[1])).real, -(e * np.conj(h[0])).real])
     else:
         s = np.array([-(e * np.conj(h[1])).real, (e * np.conj(h[0])).real])
-    density = np.nan_to_num(np.sum(s * normal[:, :, None], axis=0))  # (F, G)
+    density = np.nan_to_num(np.sum(s * normal, axis=0)).reshape(nf, GAUSS)
     scale = 2 * np.pi * pts[0] if solution.problem.axisymmetric else solution.problem.depth_m
-    weight = 0.5 * w[None, :] * length[:, None] * scale
+    weight = (0.5 * np.tile(w, nf) * speed * scale).reshape(nf, GAUSS)
+    length = (0.5 * np.tile(w, nf) * speed).reshape(nf, GAUSS).sum(axis=1)
     start = np.concatenate([[0.0], np.cumsum(length)[:-1]])
     arc = start[:, None] + length[:, None] * t[None, :]
-    return SurfacePower(region, arc.ravel(), pts.reshape(2, -1), density.ravel(),
-                        np.broadcast_to(weight, density.shape).ravel())
+    return SurfacePower(region, arc.ravel(), pts, density.ravel(), weight.ravel())
 
 
-def cached_surface_power(solution, region: str) -> SurfacePower | None:
+def cached_surface_power(solution, region: str) -> SurfacePower:
     """:func:`surface_power`, computed once per solution and region (the results record,
-    the CSV table and the picture all need it); None, with a warning in the log, where
-    the outline cannot be sampled (points on the straight chords of curved elements can
-    fall outside the mesh's inverse map)."""
+    the CSV table and the picture all need it)."""
     cache = solution.__dict__.setdefault("_surface_power", {})
     if region not in cache:
-        try:
-            cache[region] = surface_power(solution, region)
-        except Exception as err:  # skfem raises plain Exception from its inverse map
-            log.warning("no surface power density for %s: %s", region, err)
-            cache[region] = None
+        cache[region] = surface_power(solution, region)
     return cache[region]
 
 

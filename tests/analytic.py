@@ -45,6 +45,18 @@ def cylinder_power_per_length(h0, radius, sigma, mu_r, frequency):
     return float(-np.real(2 * np.pi * radius * e_phi * np.conj(h0)))
 
 
+def round_wire_impedance(radius, sigma, frequency):
+    r"""Internal impedance per unit length (ohm/m, complex) of a round wire of ``radius``
+    (m) and conductivity ``sigma`` (S/m) with its return far away:
+    Z' = k J0(ka) / (2 pi a sigma J1(ka)), k^2 = -j omega mu0 sigma (S. Ramo,
+    J. R. Whinnery, T. Van Duzer, *Fields and Waves in Communication Electronics*, 1965,
+    skin effect in round wires). Re Z' is the AC resistance, Im Z' / omega the internal
+    inductance.
+    """
+    k = np.sqrt(-1j * 2 * np.pi * frequency * MU0 * sigma)
+    return complex(k / (2 * np.pi * radius * sigma) * jv(0, k * radius) / jv(1, k * radius))
+
+
 def cylinder_field(r, h0, radius, sigma, mu_r, frequency):
     """H_z(r) inside the cylinder (A/m, complex RMS), same source as above."""
     omega = 2 * np.pi * frequency

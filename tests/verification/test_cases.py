@@ -6,8 +6,8 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from analytic import MU0
-from scipy.special import ellipe, ellipk, jv
+from analytic import MU0, round_wire_impedance
+from scipy.special import ellipe, ellipk
 
 from whorl.cases.loader import load_case
 from whorl.cases.run import solve_case
@@ -96,8 +96,7 @@ def test_round_wire_internal_impedance(ratio):
     _, results, _ = run("round-wire-skin-effect", freq=f"{frequency} Hz")
     sol = results["solutions"][0]
     omega = 2 * np.pi * frequency
-    k = np.sqrt(-1j * omega * MU0 * sigma)
-    z = k / (2 * np.pi * radius * sigma) * jv(0, k * radius) / jv(1, k * radius)
+    z = round_wire_impedance(radius, sigma, frequency)
     wire = sol["regions"]["wire"]
     assert wire["loss_w"] == pytest.approx(z.real, rel=0.01)  # P = R |I|^2 with 1 A
     assert 2 * wire["magnetic_energy_j"] == pytest.approx(z.imag / omega, rel=0.01)

@@ -8,8 +8,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from analytic import MU0
-from scipy.special import jv
+from analytic import MU0, round_wire_impedance
 
 from whorl.cases.loader import load_case
 from whorl.cases.run import solve_case
@@ -21,8 +20,7 @@ FREQUENCY = RATIO**2 / (RADIUS**2 * np.pi * MU0 * SIGMA)
 
 
 def reference_resistance():
-    k = np.sqrt(-1j * 2 * np.pi * FREQUENCY * MU0 * SIGMA)
-    return (k / (2 * np.pi * RADIUS * SIGMA) * jv(0, k * RADIUS) / jv(1, k * RADIUS)).real
+    return round_wire_impedance(RADIUS, SIGMA, FREQUENCY).real
 
 
 def loss_error(curved: bool, size_mm: float | None = None) -> float:
