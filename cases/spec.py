@@ -79,10 +79,12 @@ class OutputSpec:
 @dataclass(frozen=True)
 class SweepSpec:
     """``axes`` maps a parameter name to its list of values (each a string or number
-    as a parameter override accepts it)."""
+    as a parameter override accepts it); ``from_command_line`` is True for a sweep made
+    by ``whorl sweep --vary`` instead of the case's ``[sweep]`` table."""
 
     mode: str
     axes: dict = field(default_factory=dict)
+    from_command_line: bool = False
 
 
 @dataclass

@@ -22,6 +22,7 @@ What a run does
 
 from __future__ import annotations
 
+import json
 import logging
 import os
 import shutil
@@ -85,12 +86,19 @@ def sweep_folder(case, out=None) -> Path:
     return output_root(case, out) / case.name / "sweep"
 
 
-def load_sweep(path, overrides=None, max_points: int = DEFAULT_MAX_POINTS, vary=None):
+def load_sweep(path, overrides=None, max_points: int = DEFAULT_MAX_POINTS, vary=None,
+               out=None):
     """The case and its points (list of override dicts), checked. ``vary`` (from
     ``--vary NAME=V1,V2``: name -> list of values) replaces the case's ``[sweep]``
-    table by a grid over those values."""
+    table by a grid over those values. Without ``vary``, a sweep folder (under ``out``)
+    whose sweep was started with ``--vary`` resumes with the values it recorded."""
     overrides = dict(overrides or {})
     case = load_case(path, overrides, max_points)
+    if not vary:
+        vary = recorded_vary(sweep_folder(case, out))
+        if vary:
+            log.info("resuming the sweep started with %s (recorded in its store)",
+                     " ".join(f"--vary {k}={','.join(v)}" for k, v in vary.items()))
     if vary:
         case.sweep = vary_sweep(case, vary, overrides)
     if case.sweep is None:
@@ -103,6 +111,20 @@ def load_sweep(path, overrides=None, max_points: int = DEFAULT_MAX_POINTS, vary=
     specs = expand(case.sweep)
     check_count(len(specs), max_points)
     return case, specs
+
+
+def recorded_vary(folder: Path) -> dict | None:
+    """The ``--vary`` values a sweep folder's store recorded (None: none, no store, or a
+    store that cannot be read; a damaged store is dealt with when the sweep runs)."""
+    path = folder / STORE_NAME
+    if not path.is_file() or store_damage(path):
+        return None
+    store = SweepStore(path, readonly=True)
+    try:
+        text = store.get("vary")
+    finally:
+        store.close()
+    return json.loads(text) if text else None
 
 
 def vary_sweep(case, vary: dict, overrides: dict) -> SweepSpec:
@@ -119,7 +141,7 @@ def vary_sweep(case, vary: dict, overrides: dict) -> SweepSpec:
             resolve(params, {name: value},
                     lambda n, overridden: (f"--vary {n}" if overridden
                                            else f"parameters.{n}", None))
-    return SweepSpec("grid", dict(vary))
+    return SweepSpec("grid", dict(vary), from_command_line=True)
 
 
 def run_sweep(path, overrides=None, out=None, workers: int | None = None, scheduler=None,
@@ -161,7 +183,7 @@ def run_sweep(path, overrides=None, out=None, workers: int | None = None, schedu
     SweepOutcome
     """
     overrides = dict(overrides or {})
-    case, specs = load_sweep(path, overrides, max_points, vary)
+    case, specs = load_sweep(path, overrides, max_points, vary, out)
     folder = sweep_folder(case, out)
     make_sweep_folder(folder, output_key(out))
     with SweepLock(folder):
@@ -174,6 +196,9 @@ def run_sweep(path, overrides=None, out=None, workers: int | None = None, schedu
         store = SweepStore(folder / STORE_NAME)
         try:
             _check_fingerprint(store, case, overrides)
+            # the --vary values (if any), so that a plain resume continues this sweep
+            store.set(vary=json.dumps(case.sweep.axes) if case.sweep.from_command_line
+                      else "")
             repaired = None
             if damage:
                 adopted = _rebuild(store, case, specs, folder, overrides)

@@ -25,7 +25,7 @@ def sweep_status(path, overrides=None, out=None, max_points: int = 0, vary=None)
         will adopt at most).
     """
     overrides = dict(overrides or {})
-    case, specs = load_sweep(path, overrides, max_points, vary)
+    case, specs = load_sweep(path, overrides, max_points, vary, out)
     folder = sweep_folder(case, out)
     info = {"folder": folder, "expected": len(specs), "started": False,
             "running": is_running(folder)}

@@ -55,6 +55,13 @@ def test_vary_gives_the_grid_and_the_summary_has_source_numbers(varied, capsys):
     assert main(["sweep", str(path), "--status", "--vary", "gap=2mm,4mm",
                  "--vary", "freq=0.2kHz,0.5kHz"]) == 0
     assert "finished: 4 done" in capsys.readouterr().out
+    # without --vary the folder's sweep is the recorded one: status and a resume find
+    # the same four points finished (not the case's own one-point table)
+    assert main(["sweep", str(path), "--status"]) == 0
+    assert "finished: 4 done" in capsys.readouterr().out
+    assert main(["sweep", str(path), "--workers", "1"]) == 0
+    with open(folder / "summary.csv", newline="") as f:
+        assert len(list(csv.DictReader(f))) == 4
 
 
 def test_vary_checks_names_and_values(tmp_path):
