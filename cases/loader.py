@@ -200,15 +200,6 @@ def _build(text: str, path, overrides: dict) -> Case:
         return materials[region_material[region]].conductivity
 
     heating = study.kind == "heating"
-    if heating:  # the heating study's field solutions are linear (superposition)
-        for entry in entries:
-            material = materials[region_material[entry.spec.name]]
-            if material.bh_curve is not None:
-                raise entry.table.error("material", f"material {material.name!r} has a B-H "
-                                        "curve, which heating studies do not use yet (their "
-                                        "field solutions are linear): give a material with "
-                                        "an effective relative_permeability and a "
-                                        "curie_temperature for the heating study")
     sources, waveforms = read_sources(ctx, doc, region_names, conductivity,
                                       study.kind == "transient", heating)
     supplies = read_supplies(ctx, doc) if heating else {}

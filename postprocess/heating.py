@@ -180,6 +180,9 @@ def heating_record(history, points: dict, reported_k=()) -> dict:
         }
     out["field_solutions"] = sum(1 for f in fields if f.solution is not None)
     out["field_solution_times_s"] = [float(f.time_s) for f in fields if f.solution is not None]
+    # factorised systems per field solution (more than 1: effective-permeability iterates)
+    out["field_linear_solutions"] = [int(getattr(f, "linear_solutions", 1))
+                                     for f in fields if f.solution is not None]
     out["steps"] = history.steps
     out["rejected_steps"] = history.rejected_steps
     out["end_of_heating_s"] = history.end_of_heating_s

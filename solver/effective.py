@@ -60,6 +60,7 @@ MAX_ITERATIONS = 60
 SHRINK = 0.5
 ALPHA = 0.6
 GROW = 1.5
+ANDERSON_DEPTH = 4  # earlier iterates combined by the accelerated iteration
 STEP_LIMIT = np.log(10.0)  # nu changes by at most this factor (as a log) in one iteration
 _GAUSS = np.polynomial.legendre.leggauss(48)
 
@@ -121,6 +122,124 @@ def effective_curve(curve) -> EffectiveCurve:
     return _CURVES[key][1]
 
 
+def effective_reluctivity(sat, x, nu_now):
+    """Per element of the saturable part ``sat``: the effective reluctivity for the
+    amplitude of ``x``, taken from its flux density B_m and from its field strength
+    H_m = nu_now B_m; returns both (m/H)."""
+    b = np.sqrt(2.0) * sat.element_flux_density(x)
+    from_b, from_h = np.empty_like(b), np.empty_like(b)
+    for curve, pos in sat.curves:
+        m = None if sat.multiplier is None else sat.multiplier[pos]
+        eff = effective_curve(curve)
+        from_b[pos] = eff.reluctivity(b[pos], m)
+        from_h[pos] = eff.reluctivity_at_field(nu_now[pos] * b[pos], m)
+    return from_b, from_h
+
+
+def _volumes(sat):
+    """Volume of each saturable element per radian (axisymmetric) or per metre."""
+    return (sat.basis.dx * (np.asarray(sat.basis.global_coordinates())[0]
+                            if sat.axisymmetric else 1.0)).sum(axis=1)
+
+
+def weighted_change(sat, x, nu, new):
+    """The energy-weighted relative change of the reluctivity:
+    sum |new - nu| B^2 dV / sum nu B^2 dV over the saturable elements (B: the
+    element's RMS flux density, dV its volume per radian or metre)."""
+    weight = sat.element_flux_density(x) ** 2 * _volumes(sat)
+    total = float((nu * weight).sum())
+    return float((np.abs(new - nu) * weight).sum() / total) if total > 0 else 0.0
+
+
+def start_reluctivity(sat):
+    """A first guess of the reluctivities of the saturable part ``sat``: the effective
+    value at 1 T (with its magnetisation multipliers)."""
+    nu = np.empty(sat.elements.size)
+    for curve, pos in sat.curves:
+        m = None if sat.multiplier is None else sat.multiplier[pos]
+        nu[pos] = effective_curve(curve).reluctivity(np.ones(pos.size), m)
+    return nu
+
+
+def iterate(linear, sat, nu, what: str, tolerance: float = NU_TOL,
+            max_iterations: int = MAX_ITERATIONS, accelerate: bool = False):
+    """The relaxed fixed-point iteration of the module docstring.
+
+    Parameters
+    ----------
+    linear : callable nu -> x
+        The harmonic solution (full numbering) with reluctivities ``nu`` (m/H) in the
+        saturable elements; it may do more (find a supply's drive) as long as it is a
+        linear solution for that ``nu``.
+    sat : Saturable
+        The saturable part (curves and magnetisation multipliers).
+    nu : ndarray
+        Reluctivities to start from (per element of ``sat``).
+    what : str
+        Named in the log and in the error when it does not converge.
+    accelerate : bool
+        Anderson acceleration (depth ``ANDERSON_DEPTH``) of the fixed-point map
+        log nu -> log nu_new (D. G. Anderson, J. ACM 12(4), 1965; H. F. Walker and P. Ni,
+        SIAM J. Numer. Anal. 49(4), 2011): the step is the combination of the last
+        steps whose residuals (log nu_new - log nu, weighted by each element's share
+        of B^2 dV) combine to the smallest, mixed with ``ALPHA``; when the change grows,
+        the history is dropped and a plain relaxed step taken. The stopping rule is the
+        same (the change of an actual solution), so the result is the same to the
+        tolerance; only the number of solutions differs.
+
+    Returns
+    -------
+    (x, nu, report): the last solution, the reluctivities it belongs to, and a record
+    (iterations, converged, residual, method).
+    """
+    alpha, change_before = ALPHA, np.inf
+    history = []
+    steps, residuals = [], []  # Anderson: log nu and weighted residuals of earlier iterates
+    for _ in range(max_iterations):
+        x = linear(nu)
+        from_b, from_h = effective_reluctivity(sat, x, nu)
+        new = np.sqrt(from_b * from_h)
+        change = weighted_change(sat, x, nu, new)
+        history.append(change)
+        if change <= tolerance:
+            break  # x belongs to nu (kept, so that the solution is consistent)
+        grew = change > change_before
+        if grew:
+            alpha = max(alpha * SHRINK, 0.05)
+        else:
+            alpha = min(alpha * GROW, ALPHA)
+        change_before = change
+        residual = np.log(new / nu)
+        if accelerate and not grew:
+            weight = np.sqrt(sat.element_flux_density(x) ** 2 * _volumes(sat))
+            steps.append(np.log(nu))
+            residuals.append(residual * weight)
+            del steps[:-ANDERSON_DEPTH - 1], residuals[:-ANDERSON_DEPTH - 1]
+            step = alpha * residual
+            if len(steps) > 1:
+                d_f = np.diff(np.array(residuals), axis=0).T
+                d_u = np.diff(np.array(steps), axis=0).T
+                gamma = np.linalg.lstsq(d_f, residuals[-1], rcond=None)[0]
+                # u_next = u + a f - (dU + a dF) gamma, with the unweighted residual f
+                unweighted = d_f / np.where(weight > 0, weight, 1.0)[:, None]
+                step = alpha * residual - (d_u + alpha * unweighted) @ gamma
+        else:
+            steps.clear()
+            residuals.clear()
+            step = alpha * residual
+        step = np.clip(step, -STEP_LIMIT, STEP_LIMIT)
+        nu = nu * np.exp(step)
+    else:
+        raise SolveError(f"the effective permeability at {what} did not converge: after "
+                         f"{max_iterations} harmonic solutions the energy-weighted relative "
+                         f"change of the reluctivity was {change:.2e} (tolerance "
+                         f"{tolerance:g})")
+    log.debug("effective permeability at %s: %d solutions, changes %s", what, len(history),
+              ", ".join(f"{h:.1e}" for h in history))
+    return x, nu, {"iterations": len(history), "converged": True, "residual": change,
+                   "method": "effective permeability (fundamental harmonic)"}
+
+
 class EffectiveSystem:
     """An assembled system with saturable elements, for harmonic effective-permeability
     solutions (one per frequency, each its own nonlinear problem)."""
@@ -135,39 +254,16 @@ class EffectiveSystem:
         self.factorize = factorize
 
     def effective_reluctivity(self, x, nu_now):
-        """Per saturable element: the effective reluctivity for the amplitude of ``x``,
-        taken from its flux density B_m and from its field strength H_m = nu_now B_m;
-        returns both."""
-        sat = self.saturable
-        b = np.sqrt(2.0) * sat.element_flux_density(x)
-        from_b, from_h = np.empty_like(b), np.empty_like(b)
-        for curve, pos in sat.curves:
-            m = None if sat.multiplier is None else sat.multiplier[pos]
-            eff = effective_curve(curve)
-            from_b[pos] = eff.reluctivity(b[pos], m)
-            from_h[pos] = eff.reluctivity_at_field(nu_now[pos] * b[pos], m)
-        return from_b, from_h
+        """See :func:`effective_reluctivity`."""
+        return effective_reluctivity(self.saturable, x, nu_now)
 
     def weighted_change(self, x, nu, new):
-        """The energy-weighted relative change of the reluctivity:
-        sum |new - nu| B^2 dV / sum nu B^2 dV over the saturable elements (B: the
-        element's RMS flux density, dV its volume per radian or metre)."""
-        sat = self.saturable
-        b2 = sat.element_flux_density(x) ** 2
-        dv = (sat.basis.dx * (np.asarray(sat.basis.global_coordinates())[0]
-                              if sat.axisymmetric else 1.0)).sum(axis=1)
-        weight = b2 * dv
-        total = float((nu * weight).sum())
-        return float((np.abs(new - nu) * weight).sum() / total) if total > 0 else 0.0
+        """See :func:`weighted_change`."""
+        return weighted_change(self.saturable, x, nu, new)
 
     def start(self):
-        """A first guess of the reluctivities: the effective value at 1 T."""
-        sat = self.saturable
-        nu = np.empty(sat.elements.size)
-        for curve, pos in sat.curves:
-            m = None if sat.multiplier is None else sat.multiplier[pos]
-            nu[pos] = effective_curve(curve).reluctivity(np.ones(pos.size), m)
-        return nu
+        """See :func:`start_reluctivity`."""
+        return start_reluctivity(self.saturable)
 
     def _blocks(self, k):
         red = self.red
@@ -199,35 +295,9 @@ class EffectiveSystem:
         omega = 2 * np.pi * float(frequency_hz)
         b = self.system.rhs(omega) if b is None else b
         nu = self.start() if start is None else np.array(start, float)
-        alpha, change_before = ALPHA, np.inf
-        history = []
-        for _ in range(MAX_ITERATIONS):
-            x = self.solve_linear(nu, omega, b)
-            from_b, from_h = self.effective_reluctivity(x, nu)
-            new = np.sqrt(from_b * from_h)
-            change = self.weighted_change(x, nu, new)
-            history.append(change)
-            if change <= NU_TOL:
-                break  # x belongs to nu (kept, so that the solution is consistent)
-            if change > change_before:
-                alpha = max(alpha * SHRINK, 0.05)
-            else:
-                alpha = min(alpha * GROW, ALPHA)
-            change_before = change
-            step = np.clip(alpha * np.log(new / nu), -STEP_LIMIT, STEP_LIMIT)
-            nu = nu * np.exp(step)
-        else:
-            raise SolveError(f"the effective permeability at {frequency_hz:g} Hz did not "
-                             f"converge: after {MAX_ITERATIONS} harmonic solutions the "
-                             f"energy-weighted relative change of the reluctivity was "
-                             f"{change:.2e} "
-                             f"(tolerance {NU_TOL:g})")
-        k = len(history)
-        log.debug("effective permeability at %g Hz: %d solutions, changes %s", frequency_hz,
-                  k, ", ".join(f"{h:.1e}" for h in history))
-        return Solution(self.state_system(nu), float(frequency_hz), x,
-                        nonlinear={"iterations": k, "converged": True, "residual": change,
-                                   "method": "effective permeability (fundamental harmonic)"})
+        x, nu, report = iterate(lambda nu_k: self.solve_linear(nu_k, omega, b),
+                                self.saturable, nu, f"{frequency_hz:g} Hz")
+        return Solution(self.state_system(nu), float(frequency_hz), x, nonlinear=report)
 
     def state_system(self, nu_sat):
         """A copy of the system carrying the effective reluctivities ``nu_sat``."""

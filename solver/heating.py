@@ -1,7 +1,8 @@
 """The coupling loop of a heating study: field solutions and heat steps in time.
 
 1. Solve the harmonic field with every element's conductivity and permeability at
-   its temperature (:mod:`.coefficients`), the supply as :mod:`.supply` says.
+   its temperature (:mod:`.heating_field`: linear materials, or B-H curves through
+   their effective permeability), the supply as :mod:`.supply` says.
 2. Its time-averaged loss density heats the heated regions through implicit
    heat steps (:mod:`.heatstep`), held fixed until the next field solution.
 3. Solve the field again when any heated element's temperature has moved by
@@ -21,19 +22,14 @@ from __future__ import annotations
 
 import logging
 import time
-from dataclasses import dataclass, field, replace
+from dataclasses import dataclass, field
 
 import numpy as np
 
-from whorl.solver import linalg
-from whorl.solver.errors import SolveError
 from whorl.solver.heat import heat_domain
+from whorl.solver.heating_field import FieldRecord, FieldSolver
 from whorl.solver.heatstep import HeatStepper, Surface
-from whorl.solver.reassembly import Reassembler, applies
-from whorl.solver.reduction import reduce
-from whorl.solver.solution import Solution
-from whorl.solver.supply import Supply, find_drive, with_drive
-from whorl.solver.system import assemble
+from whorl.solver.supply import Supply
 
 log = logging.getLogger(__name__)
 
@@ -73,20 +69,6 @@ class HeatingStudy:
 
 
 @dataclass
-class FieldRecord:
-    """One field solution: when, the drive it found, terminal values, region losses."""
-
-    time_s: float
-    solution: object
-    loss_density: np.ndarray  # W/m^3 at the heated elements' quadrature points
-    sources: dict             # name -> (current, voltage) complex RMS
-    region_loss_w: dict
-    capped: dict
-    shortfall_w: dict
-    seconds: float = 0.0
-
-
-@dataclass
 class HeatingHistory:
     """Everything a heating run produced, as plain arrays.
 
@@ -110,69 +92,6 @@ class HeatingHistory:
     field_seconds: float = 0.0
     end_of_heating_s: float | None = None
     temperature_at_end_of_heating: np.ndarray | None = None
-
-
-class FieldSolver:
-    """The harmonic field at given element temperatures, with the supply's iteration."""
-
-    def __init__(self, problem, study: HeatingStudy, terminals, loss_density,
-                 region_losses, backend: str = "auto"):
-        self.problem, self.study = problem, study
-        self.terminals, self.loss_density, self.region_losses = (terminals, loss_density,
-                                                                 region_losses)
-        self.backend_name, factorize = linalg.choose(backend)
-        self.factorize = linalg.session(factorize)
-        self.previous = None
-        self.reassembler = None
-
-    def _system(self, problem, heated_elements):
-        if self.reassembler is None:
-            first = Reassembler(problem, heated_elements)
-            if not applies(first.base, self.study.heated):
-                self.reassembler = False
-            else:
-                self.reassembler = first
-                return first.base
-        if self.reassembler is False:
-            return assemble(problem)
-        return self.reassembler.system(problem)
-
-    def solve(self, element_temperature_k, time_s: float, heated_elements) -> FieldRecord:
-        t0 = time.perf_counter()
-        problem = replace(self.problem, element_temperature_k=element_temperature_k)
-        system = self._system(problem, heated_elements)
-        red = reduce(system)
-        omega = 2 * np.pi * self.study.frequency_hz
-        solve = self.factorize(red.matrix(1.0, 1j * omega))
-        linear = not np.any(red.fixed_values)  # superposition of one solution per source
-        unit = {}
-
-        def solve_one(drive):
-            x = red.expand(solve(red.rhs(system.rhs_for(drive), 1.0, 1j * omega)))
-            if not np.all(np.isfinite(x)):
-                raise SolveError("the field solution is not finite: the system is singular")
-            return x
-
-        def solve_for(drive):
-            sys_d = replace(system, problem=with_drive(problem, drive))
-            if not linear:
-                return Solution(sys_d, self.study.frequency_hz, solve_one(drive))
-            x = np.zeros(system.size, dtype=complex)
-            for name, d in drive.items():
-                if d != 0:
-                    if name not in unit:
-                        unit[name] = solve_one({name: 1.0 + 0j})
-                    x += d * unit[name]
-            return Solution(sys_d, self.study.frequency_hz, x)
-
-        state, solution = find_drive(solve_for, self.terminals, problem,
-                                     self.study.supplies, time_s, self.previous)
-        self.previous = {k: v for k, v in state.drive.items() if v != 0} or self.previous
-        q = self.loss_density(solution)[heated_elements]
-        record = FieldRecord(time_s, solution, q, state.terminals,
-                             self.region_losses(solution), state.capped, state.shortfall_w)
-        record.seconds = time.perf_counter() - t0
-        return record
 
 
 def _any_source_on(study: HeatingStudy, problem, time_s: float) -> bool:
@@ -311,5 +230,5 @@ def energy_balance(history: HeatingHistory) -> dict:
             "balance": mismatch / induced if induced > 0 else 0.0}
 
 
-__all__ = ["FieldRecord", "HeatingHistory", "HeatingStudy", "Surface", "Supply",
+__all__ = ["FieldRecord", "FieldSolver", "HeatingHistory", "HeatingStudy", "Surface", "Supply",
            "energy_balance", "run_heating"]

@@ -145,6 +145,35 @@ _STEEL_THERMAL = (
     "Curie point 770 degC and emissivity 0.8 of an oxidised surface (common practice)"
 )
 
+_LOW_CARBON_THERMAL = (
+    "typical values for a low-carbon steel (about 0.1 % C, such as AISI 1010), values from "
+    "memory of handbook tables (ASM Handbook vol. 1; BISRA physical constants of steels): "
+    "resistivity 0.14 to 1.17 micro-ohm m from 20 to 1000 degC, thermal conductivity 60 "
+    "falling to 27 W/(m K), specific heat with its peak of about 900 J/(kg K) near the Curie "
+    "point (latent heat of the transformation), Curie point 770 degC and emissivity 0.8 of "
+    "an oxidised surface (common practice)"
+)
+
+_FERRITIC_THERMAL = (
+    "typical values for a ferritic stainless steel (AISI 430), values from memory of "
+    "handbook tables (ASM Handbook vol. 1): resistivity 0.60 to 1.2 micro-ohm m from 20 to "
+    "1000 degC, thermal conductivity about 26 W/(m K), specific heat 460 rising to 700 "
+    "J/(kg K) near its Curie point of about 670 degC (value from memory), emissivity 0.6 of "
+    "an oxidised surface (common practice)"
+)
+
+# Medium-carbon steel (AISI 1045): the linear "carbon-steel" and "medium-carbon-steel-bh"
+# share these tables (sources in _STEEL_THERMAL).
+_MEDIUM_CARBON = dict(
+    conductivity_table=_resistivity((20, 100, 200, 400, 600, 700, 800, 900, 1000),
+                                    (0.16, 0.22, 0.29, 0.46, 0.69, 0.84, 1.03, 1.12, 1.17)),
+    curie_temperature_k=770.0 + 273.15,
+    thermal_conductivity=_table((20, 200, 400, 600, 800, 1000), (52, 48, 42, 35, 26, 27)),
+    density=7850.0,
+    specific_heat=_table((20, 200, 400, 600, 700, 750, 770, 800, 900, 1000),
+                         (460, 520, 580, 700, 800, 900, 900, 700, 620, 640)),
+    emissivity=0.8, thermal_source=_STEEL_THERMAL)
+
 BUILTIN: dict[str, Material] = {
     m.name: m
     for m in (
@@ -207,16 +236,7 @@ BUILTIN: dict[str, Material] = {
                  "linear value below saturation (common practice): real steel is nonlinear "
                  "and loses its permeability above the Curie point (about 770 degC); "
                  "medium-carbon-steel-bh is the same steel with a B-H curve",
-                 conductivity_table=_resistivity((20, 100, 200, 400, 600, 700, 800, 900, 1000),
-                                                 (0.16, 0.22, 0.29, 0.46, 0.69, 0.84, 1.03,
-                                                  1.12, 1.17)),
-                 curie_temperature_k=770.0 + 273.15,
-                 thermal_conductivity=_table((20, 200, 400, 600, 800, 1000),
-                                             (52, 48, 42, 35, 26, 27)),
-                 density=7850.0,
-                 specific_heat=_table((20, 200, 400, 600, 700, 750, 770, 800, 900, 1000),
-                                      (460, 520, 580, 700, 800, 900, 900, 700, 620, 640)),
-                 emissivity=0.8, thermal_source=_STEEL_THERMAL),
+                 **_MEDIUM_CARBON),
         Material("low-carbon-steel-bh", 1 / 1.4e-7, 1500.0,
                  "typical values, not a maker's data: low-carbon steel such as AISI 1010, "
                  "resistivity 1.4e-7 ohm*m (ASM Handbook vol. 1; value from memory); B-H curve "
@@ -225,7 +245,18 @@ BUILTIN: dict[str, Material] = {
                  "(Hk = 1.11 kA/m), typical of annealed low-carbon steel (Bozorth, "
                  "Ferromagnetism, 1951; values from memory)",
                  bh_curve=frohlich_kennelly(2.1, 1500.0, source="Frohlich-Kennelly law, "
-                                            "Js = 2.1 T, initial mu_r 1500")),
+                                            "Js = 2.1 T, initial mu_r 1500"),
+                 conductivity_table=_resistivity((20, 100, 200, 400, 600, 700, 800, 900,
+                                                  1000),
+                                                 (0.14, 0.19, 0.26, 0.46, 0.73, 0.90, 1.08,
+                                                  1.13, 1.17)),
+                 curie_temperature_k=770.0 + 273.15,
+                 thermal_conductivity=_table((20, 200, 400, 600, 800, 1000),
+                                             (60, 54, 46, 37, 29, 28)),
+                 density=7870.0,
+                 specific_heat=_table((20, 200, 400, 600, 700, 750, 770, 800, 900, 1000),
+                                      (450, 520, 590, 700, 800, 900, 900, 700, 620, 640)),
+                 emissivity=0.8, thermal_source=_LOW_CARBON_THERMAL),
         Material("medium-carbon-steel-bh", 1 / 1.6e-7, 600.0,
                  "typical values, not a maker's data: medium-carbon steel such as AISI 1045, "
                  "resistivity 1.6e-7 ohm*m (ASM Handbook vol. 1; value from memory); B-H "
@@ -234,7 +265,8 @@ BUILTIN: dict[str, Material] = {
                  "of normalised medium-carbon steel (Bozorth, Ferromagnetism, 1951; values "
                  "from memory)",
                  bh_curve=frohlich_kennelly(2.0, 600.0, source="Frohlich-Kennelly law, "
-                                            "Js = 2.0 T, initial mu_r 600")),
+                                            "Js = 2.0 T, initial mu_r 600"),
+                 **_MEDIUM_CARBON),
         Material("ferritic-stainless-bh", 1 / 6.0e-7, 500.0,
                  "typical values, not a maker's data: ferritic stainless steel such as AISI "
                  "430, resistivity 6.0e-7 ohm*m (ASM Handbook vol. 1; value from memory); B-H "
@@ -242,7 +274,15 @@ BUILTIN: dict[str, Material] = {
                  "Js = 1.5 T and initial relative permeability 500 (Hk = 2.39 kA/m) "
                  "(values from memory)",
                  bh_curve=frohlich_kennelly(1.5, 500.0, source="Frohlich-Kennelly law, "
-                                            "Js = 1.5 T, initial mu_r 500")),
+                                            "Js = 1.5 T, initial mu_r 500"),
+                 conductivity_table=_resistivity((20, 200, 400, 600, 800, 1000),
+                                                 (0.60, 0.78, 0.93, 1.05, 1.15, 1.20)),
+                 curie_temperature_k=670.0 + 273.15,
+                 thermal_conductivity=_table((20, 500, 1000), (26.0, 26.5, 27.0)),
+                 density=7750.0,
+                 specific_heat=_table((20, 400, 600, 650, 670, 700, 900),
+                                      (460, 560, 640, 700, 700, 620, 640)),
+                 emissivity=0.6, thermal_source=_FERRITIC_THERMAL),
         Material("water", 0.05, 1.0,
                  "tap water, 0.005 to 0.05 S/m; the upper end is taken (common practice)",
                  thermal_conductivity=0.6, density=998.0, specific_heat=4182.0,

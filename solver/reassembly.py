@@ -47,13 +47,22 @@ class Reassembler:
         self._stiffness = ElementwiseMatrix(form.stiffness, basis, local, n, nu=ones)
         self._mass = ElementwiseMatrix(form.conductor_mass, basis, local, n, sigma=ones)
 
-    def system(self, problem):
-        """The system of ``problem`` (the same mesh and sources; new temperatures)."""
+    def stiffness(self, nu):
+        """S0 with reluctivity ``nu`` (per element of the mesh, m/H) on :attr:`elements`."""
+        el = self.elements
+        return (self.base.S0 + self._stiffness.matrix(nu[el] - self.base.nu[el])).tocsr()
+
+    def system(self, problem, nu=None):
+        """The system of ``problem`` (the same mesh and sources; new temperatures).
+
+        ``nu`` (per element, m/H) replaces the problem's reluctivities when given (the
+        effective reluctivities of saturable elements, which must be among
+        :attr:`elements`)."""
         base, el = self.base, self.elements
-        nu, sigma = reluctivity(problem), eddy_conductivity(problem)
-        s0 = base.S0 + self._stiffness.matrix(nu[el] - base.nu[el])
+        nu = reluctivity(problem) if nu is None else nu
+        sigma = eddy_conductivity(problem)
         s1 = base.S1 + self._mass.matrix(sigma[el] - base.sigma[el])
         nu_q = np.array(base.nu_q, copy=True)
         nu_q[el] = nu[el][:, None]
-        return replace(base, problem=problem, nu=nu, sigma=sigma, S0=s0.tocsr(),
+        return replace(base, problem=problem, nu=nu, sigma=sigma, S0=self.stiffness(nu),
                        S1=s1.tocsr(), nu_q=nu_q)

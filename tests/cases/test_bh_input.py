@@ -156,13 +156,37 @@ def test_frohlich_kennelly_initial_permeability():
     assert c.flux_density(np.array([hk]))[0] == pytest.approx(MU0 * hk + 1.0, rel=1e-3)
 
 
-def test_heating_study_refuses_a_curve(tmp_path, capsys):
-    """Heating studies solve their field linearly: a B-H curve there is refused, not
-    silently replaced by its initial permeability."""
+def _hardening_with(tmp_path, material_text, name="shaft-steel"):
+    """The shaft hardening demo with its steel replaced by ``material_text``."""
     demo = Path(__file__).resolve().parents[2] / "cases" / "examples"
     text = (demo / "shaft-end-hardening.toml").read_text(encoding="utf-8")
-    text = text.replace('material = "shaft-steel"', 'material = "medium-carbon-steel-bh"', 1)
+    start = text.index("[material.shaft-steel]")
+    end = text.index("[[region]]")
+    text = text[:start] + material_text + "\n\n" + text[end:]
+    text = text.replace('material = "shaft-steel"', f'material = "{name}"', 1)
     (tmp_path / "case.toml").write_text(text, encoding="utf-8")
-    assert main(["check", str(tmp_path / "case.toml")]) == 2
+    return tmp_path / "case.toml"
+
+
+def test_heating_study_takes_a_curve(tmp_path, capsys):
+    """A heating study takes a material with a B-H curve (its effective permeability at
+    each element's temperature): a built-in saturable steel, which has thermal data."""
+    case = _hardening_with(tmp_path, "", name="medium-carbon-steel-bh")
+    assert main(["check", str(case)]) == 0
+    assert "medium-carbon-steel-bh" in capsys.readouterr().out
+
+
+def test_heating_curve_without_thermal_data_exits_2(tmp_path, capsys):
+    """Bad input still exits 2 with the key path: a saturable steel heated without its
+    density."""
+    material = """[material.bare-steel]
+resistivity = "0.18 uohm*m"
+bh_curve = { h = [0, 1000, 10000, 100000], b = [0, 1.0, 1.6, 2.0] }
+curie_temperature = "760 degC"
+thermal_conductivity = "45 W/(m*K)"
+specific_heat = "500 J/(kg*K)"
+"""
+    case = _hardening_with(tmp_path, material, name="bare-steel")
+    assert main(["check", str(case)]) == 2
     err = capsys.readouterr().err
-    assert "region[1].material" in err and "B-H" in err
+    assert "density" in err and "material.bare-steel" in err

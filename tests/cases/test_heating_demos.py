@@ -26,23 +26,23 @@ def run(name, tmp_path, capsys, *sets):
 
 def test_shaft_end_hardening_short(tmp_path, capsys):
     res, folder, out = run("shaft-end-hardening", tmp_path, capsys, "freq=1 kHz",
-                           "heat_time=1.5 s", "cycle=2.5 s")
+                           "heat_time=0.8 s", "cycle=1.2 s")
     h = res["heating"]
     t = h["time_s"]
-    assert 1.5 in t and t[-1] == 2.5                       # steps land on the switching time
+    assert 0.8 in t and t[-1] == 1.2                       # steps land on the switching time
     surface = h["points"]["surface"]["temperature_c"]
-    k = t.index(1.5)
+    k = t.index(0.8)
     assert surface[k] > 300 and surface[-1] < surface[k]    # heated, then quenched
     power = h["sources"]["inductor"]["power_w"]
     limit = h["sources"]["inductor"]["supply_limit"]
-    on = [p for p, time in zip(power, t, strict=True) if 0 < time <= 1.5]
+    on = [p for p, time in zip(power, t, strict=True) if 0 < time <= 0.8]
     assert all(p <= 40e3 * (1 + 1e-6) for p in on)           # the power asked, or less...
     if limit is None:
         assert min(on) > 40e3 * (1 - 1e-6)
     else:                                                   # ... when a cap binds
         assert limit["cap"] == "max_voltage" and limit["max_shortfall_w"] > 0
         assert max(h["sources"]["inductor"]["voltage_v"]) <= 60 * (1 + 1e-6)
-    assert all(p == 0 for p, time in zip(power, t, strict=True) if time > 1.5)
+    assert all(p == 0 for p, time in zip(power, t, strict=True) if time > 0.8)
     assert abs(h["energy"]["balance"]) < 0.01
     assert h["field_solutions"] > 2
     with open(folder / "line_radial.csv") as f:

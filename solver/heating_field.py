@@ -1,0 +1,200 @@
+"""The field solutions of a heating study: linear or saturable materials, with the supply.
+
+Every element takes its conductivity and permeability at its own temperature
+(:mod:`.coefficients`); only the heated elements (and the saturable ones) change
+between field solutions, so the system is re-weighted there (:mod:`.reassembly`)
+instead of assembled again.
+
+Linear materials: the field is linear in the drive, so one solution per source
+(unit drive) serves every trial drive of the supply's iteration (:mod:`.supply`).
+
+Saturable materials (a B-H curve): the effective permeability per element
+(:mod:`.effective`) at each element's temperature. The Curie transition enters once,
+as the magnetisation multiplier m(T) of the curve
+(:func:`~whorl.solver.coefficients.magnetisation`, from ``element_temperature_k``;
+``element_magnetisation`` is not set as well, which would apply it twice); the
+conductivity comes from its temperature table. The field now depends on the
+drive's amplitude, so superposing unit solutions is no longer exact for the whole
+problem; but at every iterate of the effective iteration the reluctivities are
+frozen and the problem *is* linear. The supply is therefore found inside the
+effective iteration: at each iterate, :func:`~.supply.find_drive` finds (by
+superposition, exactly) the drive that meets the power and the caps for the
+frozen reluctivities, and the reluctivities are then updated from the field of
+that drive. At convergence the reluctivities agree with the field to the
+effective iteration's tolerance (``effective.NU_TOL``, an energy-weighted relative
+change of 1e-3) and the drive meets the supply to ``find_drive``'s tolerance (1e-9,
+relative) for them. A power-controlled saturable model costs one factorisation per
+iterate, as a fixed drive does (a choice of this project, instead of an outer
+secant iteration on the amplitude around whole effective solutions). Warm start:
+the last field solution's reluctivities, updated once from its field with the
+multipliers of the new temperatures (the field moves little between two field
+solutions, the permeability much only where an element crosses the Curie point).
+"""
+
+from __future__ import annotations
+
+import time
+from dataclasses import dataclass, replace
+
+import numpy as np
+
+from whorl.solver import linalg
+from whorl.solver.coefficients import element_regions, magnetisation
+from whorl.solver.effective import effective_reluctivity, iterate, start_reluctivity
+from whorl.solver.errors import SolveError
+from whorl.solver.reassembly import Reassembler, applies
+from whorl.solver.reduction import reduce
+from whorl.solver.saturable import base_matrix, has_saturable, saturable_part
+from whorl.solver.solution import Solution
+from whorl.solver.supply import find_drive, with_drive
+from whorl.solver.system import assemble
+
+ACCELERATE = True
+"""Anderson acceleration of the effective iteration (see :func:`.effective.iterate`)."""
+
+
+@dataclass
+class FieldRecord:
+    """One field solution: when, the drive it found, terminal values, region losses."""
+
+    time_s: float
+    solution: object
+    loss_density: np.ndarray  # W/m^3 at the heated elements' quadrature points
+    sources: dict             # name -> (current, voltage) complex RMS
+    region_loss_w: dict
+    capped: dict
+    shortfall_w: dict
+    seconds: float = 0.0
+    linear_solutions: int = 1  # linear systems solved (iterates of the effective iteration)
+
+
+def saturable_regions(problem) -> list[str]:
+    """Names of the regions whose material has a B-H curve."""
+    return [n for n in element_regions(problem)
+            if getattr(problem.materials[n], "bh_curve", None) is not None]
+
+
+class FieldSolver:
+    """The harmonic field at given element temperatures, with the supply's iteration."""
+
+    def __init__(self, problem, study, terminals, loss_density, region_losses,
+                 backend: str = "auto"):
+        self.problem, self.study = problem, study
+        self.terminals, self.loss_density, self.region_losses = (terminals, loss_density,
+                                                                 region_losses)
+        self.backend_name, factorize = linalg.choose(backend)
+        self.factorize = linalg.session(factorize)
+        self.previous = None
+        self.reassembler = None
+        self.saturable = has_saturable(problem)
+        self.sat = None        # the saturable part (elements, curves, multipliers)
+        self.nu_sat = None     # its effective reluctivities at the last field solution
+        self.x_last = None     # the last field solution (a warm start)
+
+    def _changing(self, problem, heated_elements):
+        """Elements whose coefficients may change: the heated and the saturable ones."""
+        regions = element_regions(problem)
+        sat = [regions[n] for n in saturable_regions(problem)] if self.saturable else []
+        return np.union1d(np.asarray(heated_elements), np.concatenate([[], *sat])
+                          ).astype(np.int64), [*self.study.heated,
+                                               *(saturable_regions(problem)
+                                                 if self.saturable else [])]
+
+    def _system(self, problem, heated_elements):
+        if self.reassembler is None:
+            elements, regions = self._changing(problem, heated_elements)
+            first = Reassembler(problem, elements)
+            if not applies(first.base, regions):
+                self.reassembler = False
+            else:
+                self.reassembler = first
+                return first.base
+        if self.reassembler is False:
+            return assemble(problem)
+        return self.reassembler.system(problem)
+
+    def _drive(self, system, problem, time_s):
+        """The supply's drive for the (linear) ``system`` and its solution; returns
+        (DriveState, Solution)."""
+        red = reduce(system)
+        omega = 2 * np.pi * self.study.frequency_hz
+        solve = self.factorize(red.matrix(1.0, 1j * omega))
+        linear = not np.any(red.fixed_values)  # superposition of one solution per source
+        unit = {}
+
+        def solve_one(drive):
+            x = red.expand(solve(red.rhs(system.rhs_for(drive), 1.0, 1j * omega)))
+            if not np.all(np.isfinite(x)):
+                raise SolveError("the field solution is not finite: the system is singular")
+            return x
+
+        def solve_for(drive):
+            sys_d = replace(system, problem=with_drive(problem, drive))
+            if not linear:
+                return Solution(sys_d, self.study.frequency_hz, solve_one(drive))
+            x = np.zeros(system.size, dtype=complex)
+            for name, d in drive.items():
+                if d != 0:
+                    if name not in unit:
+                        unit[name] = solve_one({name: 1.0 + 0j})
+                    x += d * unit[name]
+            return Solution(sys_d, self.study.frequency_hz, x)
+
+        state, solution = find_drive(solve_for, self.terminals, problem,
+                                     self.study.supplies, time_s, self.previous)
+        self.previous = {k: v for k, v in state.drive.items() if v != 0} or self.previous
+        return state, solution
+
+    def _saturable(self, system, problem, time_s):
+        """The effective-permeability iteration with the supply found at every iterate;
+        returns (DriveState, Solution, number of iterates)."""
+        if self.sat is None:
+            self.sat = saturable_part(system)
+        sat = self.sat
+        m = np.clip(magnetisation(problem)[sat.elements], 0.0, 1.0)  # Curie, once
+        sat.multiplier = None if np.all(m == 1.0) else m
+        if self.reassembler:
+            def stiffness(nu):
+                return self.reassembler.stiffness(nu)
+        else:
+            without = base_matrix(system, sat)
+
+            def stiffness(nu):
+                return (without + sat.stiffness(nu[sat.elements])).tocsr()
+        if self.nu_sat is None:
+            start = start_reluctivity(sat)
+        else:
+            from_b, from_h = effective_reluctivity(sat, self.x_last, self.nu_sat)
+            start = np.sqrt(from_b * from_h)
+        found = {}
+
+        def linear(nu_sat):
+            nu = np.array(system.nu, float)
+            nu[sat.elements] = nu_sat
+            nu_q = np.array(system.nu_q, float, copy=True)
+            nu_q[sat.elements] = nu_sat[:, None]
+            state = replace(system, nu=nu, nu_q=nu_q, S0=stiffness(nu))
+            found["drive"], found["solution"] = self._drive(state, problem, time_s)
+            return found["solution"].x
+
+        x, nu_sat, report = iterate(linear, sat, start, f"t = {time_s:g} s",
+                                    accelerate=ACCELERATE)
+        self.nu_sat, self.x_last = nu_sat, x
+        solution = found["solution"]
+        solution.nonlinear = report
+        return found["drive"], solution, report["iterations"]
+
+    def solve(self, element_temperature_k, time_s: float, heated_elements) -> FieldRecord:
+        t0 = time.perf_counter()
+        problem = replace(self.problem, element_temperature_k=element_temperature_k)
+        system = self._system(problem, heated_elements)
+        if self.saturable:
+            state, solution, count = self._saturable(system, problem, time_s)
+        else:
+            (state, solution), count = self._drive(system, problem, time_s), 1
+        q = self.loss_density(solution)[heated_elements]
+        record = FieldRecord(time_s, solution, q, state.terminals,
+                             self.region_losses(solution), state.capped, state.shortfall_w)
+        record.seconds = time.perf_counter() - t0
+        record.linear_solutions = count
+        return record
