@@ -57,14 +57,20 @@ def terminal_voltage(solution, source) -> complex:
 
 
 def source_results(solution) -> dict[str, SourceResult]:
-    """Terminal quantities of every stranded and massive source."""
+    """Terminal quantities of every stranded and massive source (for a reduced solution
+    from the projected rows, see :mod:`.projected`)."""
+    from whorl.postprocess.projected import is_reduced, terminal_values
+
     out = {}
     for s in solution.problem.sources:
         if not isinstance(s, Stranded | Massive):
             continue
-        current = solution.source_current(s)
-        voltage = terminal_voltage(solution, s)
-        psi = flux_linkage(solution, s)
+        if is_reduced(solution):
+            current, voltage, psi = terminal_values(solution, s)
+        else:
+            current = solution.source_current(s)
+            voltage = terminal_voltage(solution, s)
+            psi = flux_linkage(solution, s)
         z = voltage / current if current != 0 else complex(np.nan, np.nan)
         if solution.omega > 0:
             inductance = z.imag / solution.omega

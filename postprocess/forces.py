@@ -25,13 +25,15 @@ from __future__ import annotations
 
 import numpy as np
 
-from whorl.postprocess.fields import quadrature_fields
+from whorl.postprocess.fields import _basis_tables, quadrature_fields
+from whorl.postprocess.projected import is_reduced, shell_flux
 
 
 def shell_force(solution, region: str, fields=None):
     """Maxwell-stress force (Fx, Fy) or (Fr=0, Fz) on ``region`` in N, or None when the
     layer of elements around it is not in plain air."""
-    q = fields if fields is not None else quadrature_fields(solution)
+    reduced = is_reduced(solution)
+    q = None if reduced else fields if fields is not None else quadrature_fields(solution)
     system = solution.system
     problem = solution.problem
     mesh = problem.mesh.mesh
@@ -47,15 +49,19 @@ def shell_force(solution, region: str, fields=None):
     if (material.relative_permeability != 1.0 or material.conductivity != 0
             or not _all_in(shell, problem.mesh.elements(background), mesh.t.shape[1])):
         return None
-    grad_g = _shell_gradient(system.basis, in_region[:mesh.nvertices])[:, shell]  # (2, S, Q)
-    b = q.b[:, shell]
+    grad_g = _shell_gradient(system.basis, region, in_region[:mesh.nvertices])[:, shell]
+    if reduced:  # B of the shell projected; dv as quadrature_fields makes it
+        b = shell_flux(solution, region, shell)
+        x = _basis_tables(system.basis)[2][:, shell]
+        dv = system.kappa * system.basis.dx[shell] * system.form.weight(x)
+    else:
+        b, dv = q.b[:, shell], q.dv[shell]
     nu = system.nu_q[shell]
     b2 = np.abs(b[0]) ** 2 + np.abs(b[1]) ** 2
 
     def stress(i, j):
         return np.real(nu * b[i] * np.conj(b[j])) - (0.5 * nu * b2 if i == j else 0.0)
 
-    dv = q.dv[shell]
     fy = -np.sum((stress(1, 0) * grad_g[0] + stress(1, 1) * grad_g[1]) * dv)
     if problem.axisymmetric:
         return (0.0, float(fy))
@@ -70,9 +76,19 @@ def _all_in(elements, members, count) -> bool:
     return bool(mask[elements].all())
 
 
-def _shell_gradient(basis, g):
+_GRADIENTS: dict = {}
+
+
+def _shell_gradient(basis, region, g):
     """Gradient (2, elements, quadrature points) of the linear function with vertex values
-    ``g``, through the mesh's own element map (curved elements included)."""
+    ``g``, through the mesh's own element map (curved elements included); kept per basis
+    and region (a frequency list asks for it at every frequency)."""
     from skfem import ElementTriP1
 
-    return np.asarray(basis.with_element(ElementTriP1()).interpolate(g.astype(float)).grad)
+    key = (id(basis), region)
+    if key not in _GRADIENTS or _GRADIENTS[key][0] is not basis:
+        if any(b is not basis for b, _ in _GRADIENTS.values()):
+            _GRADIENTS.clear()  # one basis at a time
+        grad = np.asarray(basis.with_element(ElementTriP1()).interpolate(g.astype(float)).grad)
+        _GRADIENTS[key] = (basis, grad)
+    return _GRADIENTS[key][1]

@@ -72,6 +72,21 @@ def response_table(records, sweep: dict | None = None) -> tuple[list[str], list[
     return header, rows
 
 
+def restrict_sweep(sweep: dict, frequencies) -> dict:
+    """The ``frequency_sweep`` record of a run cut down to ``frequencies`` (Hz), for one
+    point of a parameter sweep whose group was solved as one frequency list: its own
+    frequencies, their estimated errors and which of them were full solves. The basis
+    (``expansion_frequencies_hz``, ``basis_size``) stays the group's, which it shares."""
+    wanted = {float(f) for f in frequencies}
+    keep = [k for k, f in enumerate(sweep["frequencies_hz"]) if float(f) in wanted]
+    out = dict(sweep)
+    out["frequencies_hz"] = [sweep["frequencies_hz"][k] for k in keep]
+    out["estimated_error"] = [sweep["estimated_error"][k] for k in keep]
+    out["full_solve_frequencies_hz"] = [f for f in sweep["full_solve_frequencies_hz"]
+                                        if float(f) in wanted]
+    return out
+
+
 def resonance(records, capacitance: float, connection: str = "parallel") -> dict:
     """Frequency of resonance (Hz) of every source with a tank capacitor of ``capacitance``
     (F) in ``connection`` ("series" or "parallel"), from the requested frequencies.

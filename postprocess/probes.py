@@ -75,7 +75,10 @@ def evaluate(solution, cells, ref, x=None) -> Probe:
     """The solution at reference coordinates ``ref`` (2, P) of elements ``cells`` (P,;
     -1: no element, values NaN). ``x`` (2, P) are the points in metres; by default the
     elements' (isoparametric) maps of ``ref``, so points on curved edges lie on the curve.
+    A reduced solution is evaluated through its projected interpolation rows.
     """
+    from whorl.postprocess.projected import is_reduced, point_values
+
     system = solution.system
     basis, form = system.basis, system.form
     cells = np.asarray(cells, dtype=np.int64)
@@ -91,18 +94,22 @@ def evaluate(solution, cells, ref, x=None) -> Probe:
         pts = np.asarray(ref, dtype=float)[:, inside, None]  # (2, P, 1): one point per cell
         if not np.all(np.isfinite(x[:, inside])):
             x[:, inside] = basis.mapping.F(pts, tind=c)[:, :, 0]
-        dofs = basis.element_dofs[:, c]
-        coeff = solution.a[dofs]  # (Nbfun, P)
-        coeff_rate = solution.a_rate[dofs]
-        val = np.zeros(c.size, dtype=complex)
-        rate = np.zeros(c.size, dtype=complex)
-        g = np.zeros((2, c.size), dtype=complex)
-        for k in range(basis.Nbfun):
-            phi = basis.elem.gbasis(basis.mapping, pts, k, tind=c)[0]
-            val += coeff[k] * np.asarray(phi)[:, 0]
-            rate += coeff_rate[k] * np.asarray(phi)[:, 0]
-            g += coeff[k] * phi.grad[:, :, 0]
-        a[inside], a_rate[inside], grad[:, inside] = val, rate, g
+        if is_reduced(solution):  # projected interpolation rows (see .projected)
+            val, g = point_values(solution, c, pts)
+            a[inside], a_rate[inside], grad[:, inside] = val, 1j * solution.omega * val, g
+        else:
+            dofs = basis.element_dofs[:, c]
+            coeff = solution.a[dofs]  # (Nbfun, P)
+            coeff_rate = solution.a_rate[dofs]
+            val = np.zeros(c.size, dtype=complex)
+            rate = np.zeros(c.size, dtype=complex)
+            g = np.zeros((2, c.size), dtype=complex)
+            for k in range(basis.Nbfun):
+                phi = basis.elem.gbasis(basis.mapping, pts, k, tind=c)[0]
+                val += coeff[k] * np.asarray(phi)[:, 0]
+                rate += coeff_rate[k] * np.asarray(phi)[:, 0]
+                g += coeff[k] * phi.grad[:, :, 0]
+            a[inside], a_rate[inside], grad[:, inside] = val, rate, g
     bx, by = form.flux_density(a, grad, x)
     b = np.array([bx, by])
     nu = np.where(inside, system.nu[np.maximum(cells, 0)], np.nan)

@@ -18,6 +18,7 @@ from whorl.postprocess.forces import shell_force
 from whorl.postprocess.loops import axisymmetric_loop, planar_loop
 from whorl.postprocess.moving_loops import moving_loop
 from whorl.postprocess.probes import probe
+from whorl.postprocess.projected import is_reduced
 from whorl.postprocess.regions import region_totals
 from whorl.postprocess.surface import cached_surface_power, heated_regions
 from whorl.solver.materials import MU0, skin_depth
@@ -168,7 +169,8 @@ def solution_record(solution, points=None, loops=None) -> dict:
     ``points`` maps a point name to its coordinates in metres; ``loops`` is a list
     of loop descriptions in metres (see :func:`loop_result`).
     """
-    fields = quadrature_fields(solution)
+    # a reduced solution's totals and point values come from projections (.projected)
+    fields = None if is_reduced(solution) else quadrature_fields(solution)
     regions = region_totals(solution, fields)
     sources = source_results(solution)
     balance = power_balance(solution, regions, sources)

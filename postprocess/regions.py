@@ -8,6 +8,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from whorl.postprocess.fields import quadrature_fields
+from whorl.postprocess.projected import is_reduced, peak_fields, region_values
 from whorl.solver.motion import moving_regions
 
 
@@ -58,7 +59,10 @@ def peak_flux_density(solution, q) -> np.ndarray:
 
 
 def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
-    """Totals of the background (``domain``) and every region of the solution's mesh."""
+    """Totals of the background (``domain``) and every region of the solution's mesh
+    (for a reduced solution from projections, see :mod:`.projected`)."""
+    if is_reduced(solution):
+        return _projected_totals(solution)
     q = fields if fields is not None else quadrature_fields(solution)
     tagged = solution.problem.mesh
     names = (tagged.background, *tagged.regions)
@@ -112,5 +116,44 @@ def region_totals(solution, fields=None) -> dict[str, RegionTotals]:
         out[name] = RegionTotals(name, complex(current[i]), float(loss[i]), float(energy[i]),
                                  (float(fx[i]), float(fy[i])), float(area[i]), top, at,
                                  load, pressure, mech, torque,
+                                 float(b_peak[elems].max()) if elems.size else 0.0)
+    return out
+
+
+def _ring(solution, elems):
+    """(largest radius, height) of an axisymmetric region's elements (m)."""
+    mesh = solution.problem.mesh.mesh
+    pts = mesh.p[:, mesh.t[:, elems]]
+    return pts[0].max(), pts[1].max() - pts[1].min()
+
+
+def _projected_totals(solution) -> dict[str, RegionTotals]:
+    """:func:`region_totals` of a reduced solution: sums from the projected operators,
+    the peaks over elements from the potential at the quadrature points."""
+    tagged = solution.problem.mesh
+    values = region_values(solution)
+    loss_q, x, b_peak = peak_fields(solution)
+    peak = loss_q.max(axis=1)
+    axisymmetric = solution.problem.axisymmetric
+    out = {}
+    for i, (name, (current, loss, energy, flux_j)) in enumerate(values.items()):
+        elems = tagged.elements(name)
+        area = float(solution.system.basis.dx[elems].sum())
+        if axisymmetric:  # f = (Re J conj(Bz), -Re J conj(Br)); a ring's Fr cancels
+            force, radial = (0.0, float(-flux_j[0].real)), float(flux_j[1].real)
+        else:             # f = (-Re J conj(By), Re J conj(Bx))
+            force, radial = (float(-flux_j[1].real), float(flux_j[0].real)), None
+        top, at = 0.0, None
+        if elems.size and peak[elems].max() > 0:
+            e = elems[np.argmax(peak[elems])]
+            k = np.argmax(loss_q[e])
+            top, at = float(loss_q[e, k]), (float(x[0, e, k]), float(x[1, e, k]))
+        load = pressure = None
+        if axisymmetric and elems.size and i > 0:
+            r_max, height = _ring(solution, elems)
+            load = radial
+            pressure = load / (2 * np.pi * r_max * height) if r_max * height > 0 else None
+        out[name] = RegionTotals(name, complex(current), float(loss), float(energy), force,
+                                 area, top, at, load, pressure, None, None,
                                  float(b_peak[elems].max()) if elems.size else 0.0)
     return out

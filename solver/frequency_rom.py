@@ -63,6 +63,7 @@ from threadpoolctl import threadpool_limits
 from whorl.solver import linalg
 from whorl.solver.errors import SolveError
 from whorl.solver.reduction import reduce
+from whorl.solver.solution import ReducedSolution, ReducedSpace, Solution
 from whorl.solver.sources import Massive, Stranded, current_is_unknown
 
 log = logging.getLogger(__name__)
@@ -398,32 +399,36 @@ class _Sweep:
             self.full(worst_f)
         self.report.basis_size = int(self.basis.cols.shape[1])
 
-    def vectors(self, frequencies, chunk=16):
-        """All unknowns (full numbering) at each frequency: the full solution at expansion
-        frequencies, the expanded reduced one elsewhere (in chunks: one pass over the
-        basis per chunk)."""
-        out = {}
-        reduced = []
-        for f in dict.fromkeys(frequencies):
+    def space(self) -> ReducedSpace:
+        """The affine part and the basis in the full numbering (see :class:`ReducedSpace`)."""
+        red, V = self.red, self.basis.cols
+        cols = np.zeros((red.size, V.shape[1] + 1), dtype=np.result_type(V, red.fixed_values))
+        cols[red.fixed, 0] = red.fixed_values
+        cols[red.free, 1:] = V
+        return ReducedSpace(cols[red.renumber])
+
+    def solutions(self, frequencies):
+        """A solution per frequency (Hz): the full one at expansion frequencies and
+        frequencies solved alone, a :class:`ReducedSolution` (coefficients only) elsewhere."""
+        space = self.space()
+        out = []
+        for f in frequencies:
             if f in self.points:
-                out[f] = self.red.expand(self.points[f][1])
+                out.append(Solution(self.system, f, self.red.expand(self.points[f][1])))
             elif f in self.alone:
-                out[f] = self.red.expand(self.alone[f])
+                out.append(Solution(self.system, f, self.red.expand(self.alone[f])))
             else:
-                reduced.append(f)
-        for i in range(0, len(reduced), chunk):
-            part = reduced[i:i + chunk]
-            X = _rc(self.basis.cols, np.column_stack([self.answers[f] for f in part]))
-            for k, f in enumerate(part):
-                out[f] = self.red.expand(X[:, k])
-        return [out[f] for f in frequencies]
+                out.append(ReducedSolution(self.system, f, space,
+                                           np.concatenate([[1.0], self.answers[f]])))
+        return out
 
 
 def reduced_sweep(system, frequencies, backend="auto", tolerance=TOLERANCE, progress=None):
     """Solve ``system`` at every frequency (Hz, all > 0) through a certified reduced model.
 
-    Returns ``(vectors, report, backend name)``: the full vector of unknowns of every
-    requested frequency (in order), and a :class:`SweepReport`.
+    Returns ``(solutions, report, backend name)``: a solution per requested frequency (in
+    order; full solutions at the expansion frequencies, :class:`ReducedSolution` elsewhere)
+    and a :class:`SweepReport`.
     """
     name, factorize = linalg.choose(backend)
     t0 = time.perf_counter()
@@ -436,12 +441,12 @@ def reduced_sweep(system, frequencies, backend="auto", tolerance=TOLERANCE, prog
     # when other processes share the cores.
     with threadpool_limits(limits=1, user_api="blas"):
         sweep.run()
-        vectors = sweep.vectors([float(f) for f in frequencies])
+        solutions = sweep.solutions([float(f) for f in frequencies])
     log.info("reduced sweep: %d frequencies from %d full solves (basis %d) in %.2f s; "
              "largest estimated error %.2e", len(sweep.freqs), len(sweep.points),
              sweep.report.basis_size, time.perf_counter() - t0,
              max(sweep.report.estimates.values(), default=0.0))
-    return vectors, sweep.report, name
+    return solutions, sweep.report, name
 
 
 __all__ = ["reduced_sweep", "wanted", "fallback_reason", "SweepReport", "TOLERANCE"]

@@ -97,13 +97,13 @@ def _solve_reduced(system, frequencies, backend, progress, tolerance):
     t0 = time.perf_counter()
     static = [f for f in frequencies if f == 0]
     positive = [f for f in frequencies if f > 0]
-    vectors, report, name = frequency_rom.reduced_sweep(system, positive, backend, tolerance,
+    reduced, report, name = frequency_rom.reduced_sweep(system, positive, backend, tolerance,
                                                         progress)
-    by_f = dict(zip([float(f) for f in positive], vectors, strict=True))
+    by_f = dict(zip([float(f) for f in positive], reduced, strict=True))
     if static:
         sols, _ = solve_system(system, [0.0], backend, progress, reduced="off")
-        by_f[0.0] = sols[0].x
-    solutions = [Solution(system, float(f), by_f[float(f)]) for f in frequencies]
+        by_f[0.0] = sols[0]
+    solutions = [by_f[float(f)] for f in frequencies]
     elapsed = time.perf_counter() - t0
     info = {"backend": name, "solve_s": elapsed, "unknowns": report.unknowns,
             "reduced": report.record([float(f) for f in frequencies])}

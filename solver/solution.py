@@ -77,3 +77,70 @@ class Solution:
         br = self.system.branches[i]
         src = self.system.source(br.source)
         return 0j if src is None else br.sign * self.source_current(src)
+
+
+class ReducedSpace:
+    """The columns a reduced solution is a combination of, in the full numbering.
+
+    ``columns`` (size, m + 1): first the affine part (the fixed values of the side
+    conditions, zero elsewhere), then the m basis vectors of the reduced model. A reduced
+    solution is ``columns @ z`` with coefficients z, z[0] = 1. ``cache`` keeps what the
+    postprocessor projects once per space (see :mod:`whorl.postprocess.projected`).
+    """
+
+    def __init__(self, columns: np.ndarray):
+        self.columns = columns
+        self.cache: dict = {}
+
+    @property
+    def size(self) -> int:
+        return self.columns.shape[1]
+
+    def expand(self, z) -> np.ndarray:
+        """``columns @ z`` (real columns times complex z without a complex copy)."""
+        z = np.asarray(z)
+        if np.iscomplexobj(self.columns):
+            return self.columns @ z
+        return self.columns @ z.real + 1j * (self.columns @ z.imag)
+
+    def rows(self, index, z) -> np.ndarray:
+        """Some unknowns of ``columns @ z``: the rows ``index`` only."""
+        return self.columns[index] @ np.asarray(z)
+
+
+class ReducedSolution(Solution):
+    """A harmonic solution known by its coefficients in a :class:`ReducedSpace`.
+
+    It behaves as a :class:`Solution`; the full vector ``x`` is formed (one product with
+    the basis) only when something asks for it (a field file, a picture, a peak over
+    elements). Circuit unknowns (branch voltages, driven currents) come from their rows
+    alone, and the postprocessor evaluates totals, terminal quantities and point values
+    from projections of the space (:mod:`whorl.postprocess.projected`).
+    """
+
+    def __init__(self, system, frequency_hz: float, space: ReducedSpace, coefficients):
+        self.system = system
+        self.frequency_hz = float(frequency_hz)
+        self.space = space
+        self.coefficients = np.asarray(coefficients, dtype=complex)
+        self.x_rate = None
+        self.time_s = None
+        self.nonlinear = None
+        self._x = None
+
+    @property
+    def x(self) -> np.ndarray:
+        if self._x is None:
+            self._x = self.space.expand(self.coefficients)
+        return self._x
+
+    @property
+    def branch_u(self) -> np.ndarray:
+        nf = self.system.n_field
+        return self.space.rows(slice(nf, nf + len(self.system.branches)), self.coefficients)
+
+    def source_current(self, source) -> complex:
+        if not current_is_unknown(source):
+            return complex(source.current)
+        k = self.system.n_field + len(self.system.branches) + self.system.driven.index(source)
+        return complex(self.space.rows(k, self.coefficients))

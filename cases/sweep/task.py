@@ -26,6 +26,7 @@ from whorl.cases.run import solve_case, write_results
 from whorl.cases.sweep.summary import heating_numbers, main_numbers
 from whorl.meshes.build import build_mesh
 from whorl.meshes.errors import MeshError
+from whorl.postprocess.frequency_response import resonance, restrict_sweep
 from whorl.solver.errors import SolveError
 
 _MESH_LOCK = threading.Lock()  # gmsh is not thread-safe (Dask workers run threads)
@@ -110,6 +111,11 @@ def _point_files(number, case, results, solutions, payload, log, built) -> dict:
     record["parameters"] = dict(case.parameters)
     if "solutions" in results:
         record["solutions"] = [results["solutions"][i] for i in picked]
+    if "frequency_sweep" in results:  # the point's own frequencies, not the group's
+        record["frequency_sweep"] = restrict_sweep(results["frequency_sweep"], wanted)
+    if results.get("resonance") is not None and case.study.tank_capacitance is not None:
+        record["resonance"] = resonance(record["solutions"], case.study.tank_capacitance,
+                                        case.study.tank_connection)
     record["sweep"] = {
         "point": number,
         "points_solved_together": sorted(payload["points"]),

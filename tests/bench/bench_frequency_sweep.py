@@ -19,57 +19,26 @@ Usage: python tests/bench/bench_frequency_sweep.py [--max-size MM] [--count 200]
 from __future__ import annotations
 
 import argparse
+import sys
 import time
+from pathlib import Path
 
 import numpy as np
 
-from whorl.cases import model
-from whorl.cases.loader import parse_case
-from whorl.meshes.build import build_mesh
-from whorl.postprocess.circuits import source_results
-from whorl.postprocess.records import solution_record
-from whorl.postprocess.regions import region_totals
-from whorl.solver.harmonic import solve_harmonic
+sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-HEATER = """\
-format = 1
-[case]
-name = "bench-frequency-response"
-[model]
-geometry = "axisymmetric"
-length_unit = "mm"
-order = 2
-[material.hot-steel]
-conductivity = "1 MS/m"
-[[region]]
-name = "billet"
-material = "hot-steel"
-shape = "rectangle"
-corner = [0, -100]
-size = [40, 200]
-[[region]]
-name = "coil"
-material = "copper"
-shape = "rectangle"
-corner = [55, -120]
-size = [12, 240]
-[domain]
-shape = "rectangle"
-corner = [0, -300]
-size = [300, 600]
-[[source]]
-name = "coil"
-kind = "stranded"
-regions = ["coil"]
-turns = 24
-current = "800 A"
-[study]
-kind = "harmonic"
-frequency = "50 kHz"
-[mesh]
-max_size = {max_size}
-per_skin_depth = 3
-"""
+from billet_heater import billet_heater  # noqa: E402
+
+from whorl.cases import model  # noqa: E402
+from whorl.cases.loader import parse_case  # noqa: E402
+from whorl.meshes.build import build_mesh  # noqa: E402
+from whorl.postprocess.circuits import source_results  # noqa: E402
+from whorl.postprocess.records import solution_record  # noqa: E402
+from whorl.postprocess.regions import region_totals  # noqa: E402
+from whorl.solver.harmonic import solve_harmonic  # noqa: E402
+
+HEATER = billet_heater("bench-frequency-response", "50 kHz",
+                       "max_size = {max_size}\nper_skin_depth = 3")
 
 
 def timed(fn, *args, **kw):

@@ -23,48 +23,15 @@ from pathlib import Path
 
 import numpy as np
 
-from whorl.cases.loader import parse_case
-from whorl.cases.run import solve_case, write_results
+sys.path.insert(0, str(Path(__file__).resolve().parent))
 
-CASE = """\
-format = 1
-[case]
-name = "bench-outputs"
-[model]
-geometry = "axisymmetric"
-length_unit = "mm"
-order = 2
-[mesh]
-max_size = {max_size}
-per_skin_depth = 3
-[material.hot-steel]
-conductivity = "1 MS/m"
-relative_permeability = 20
-[[region]]
-name = "billet"
-material = "hot-steel"
-shape = "rectangle"
-corner = [0, -100]
-size = [40, 200]
-[[region]]
-name = "coil"
-material = "copper"
-shape = "rectangle"
-corner = [55, -120]
-size = [12, 240]
-[domain]
-shape = "rectangle"
-corner = [0, -300]
-size = [300, 600]
-[[source]]
-name = "coil"
-kind = "stranded"
-regions = ["coil"]
-turns = 24
-current = "800 A"
-[study]
-kind = "harmonic"
-frequency = "3 kHz"
+from billet_heater import billet_heater  # noqa: E402
+
+from whorl.cases.loader import parse_case  # noqa: E402
+from whorl.cases.run import solve_case, write_results  # noqa: E402
+
+CASE = billet_heater("bench-outputs", "3 kHz", "max_size = {max_size}\nper_skin_depth = 3",
+                     relative_permeability=20, extra="""\
 [[line]]
 name = "radial"
 from = [0, 0]
@@ -73,7 +40,7 @@ samples = 401
 [output]
 fields = true
 plots = true
-"""
+""")
 
 
 class Timed:

@@ -36,6 +36,7 @@ import numpy as np
 sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 import baseline  # noqa: E402
+from billet_heater import billet_heater  # noqa: E402
 
 from whorl.cases import model  # noqa: E402
 from whorl.cases.loader import parse_case  # noqa: E402
@@ -44,44 +45,7 @@ from whorl.meshes.build import build_mesh  # noqa: E402
 from whorl.solver import linalg  # noqa: E402
 from whorl.solver.sources import Stranded  # noqa: E402
 
-AXISYMMETRIC = """\
-format = 1
-[case]
-name = "bench-billet"
-[model]
-geometry = "axisymmetric"
-length_unit = "mm"
-order = 2
-[material.hot-steel]
-conductivity = "1 MS/m"
-[[region]]
-name = "billet"
-material = "hot-steel"
-shape = "rectangle"
-corner = [0, -100]
-size = [40, 200]
-[[region]]
-name = "coil"
-material = "copper"
-shape = "rectangle"
-corner = [55, -120]
-size = [12, 240]
-[domain]
-shape = "rectangle"
-corner = [0, -300]
-size = [300, 600]
-[[source]]
-name = "coil"
-kind = "stranded"
-regions = ["coil"]
-turns = 24
-current = "800 A"
-[study]
-kind = "harmonic"
-frequency = "{freq}"
-[mesh]
-{mesh}
-"""
+AXISYMMETRIC = billet_heater("bench-billet", "{freq}", "{mesh}")
 
 PLANAR = """\
 format = 1
