@@ -4,8 +4,15 @@ Every quantity is instantaneous (A, V, W, N, Wb, J). The energy check:
 the energy the sources deliver at their terminals, the integral of
 sum v i dt, equals the losses integrated in time plus the magnetic energy
 stored at the end (the field starts from zero); with moving conductors the
-delivered power includes the mechanical power that keeps them moving. Integrals use the trapezoidal
-rule, consistent to second order with the BDF2 steps.
+delivered power includes the mechanical power that keeps them moving.
+
+Integrals in time follow the steps: over a BDF2 step the trapezoidal rule (second
+order, as the step); over an implicit-Euler step (the first step, and the restart at
+each breakpoint of a waveform, where rates and induced currents jump) the value at the
+step's end, which is where the step evaluates the rate. The trapezoidal rule there would
+average in the state before the jump, whose rate belongs to the previous piece: an error
+of half a step's worth of the jump at every breakpoint, first order in the step (3 % on
+a ramped coil at 60 steps, against 0.2 % with the steps' own rule).
 """
 
 from __future__ import annotations
@@ -32,6 +39,7 @@ class SeriesRecorder:
         self.energy: list[float] = []
         self.power_in: list[float] = []
         self.mechanical: list[float] = []
+        self.steps: list[str | None] = []  # the step that reached each state
 
     def add(self, state) -> None:
         """Record one transient state (a Solution with ``time_s`` and ``x_rate``)."""
@@ -39,6 +47,7 @@ class SeriesRecorder:
         regions = region_totals(state, fields)
         sources = source_results(state)
         self.time_s.append(float(state.time_s))
+        self.steps.append(getattr(state, "step", None))
         for name, t in regions.items():
             r = self.regions.setdefault(name, {"current_a": [], "loss_w": [], "force_n": []})
             r["current_a"].append(t.current_a.real)
@@ -79,14 +88,25 @@ class SeriesRecorder:
 
     def energy_balance(self) -> dict:
         """Delivered, dissipated and stored energy (J) and the relative mismatch."""
-        t = np.asarray(self.time_s)
         power = np.asarray(self.power_in) + np.asarray(self.mechanical)
-        delivered = float(np.trapezoid(power, t)) if t.size > 1 else 0.0
-        dissipated = float(np.trapezoid(self.loss, t)) if t.size > 1 else 0.0
+        delivered = self.integral(power)
+        dissipated = self.integral(self.loss)
         stored = float(self.energy[-1]) if self.energy else 0.0
         scale = max(abs(delivered), abs(dissipated) + abs(stored), 1e-300)
         return {"delivered_j": delivered, "dissipated_j": dissipated, "stored_j": stored,
                 "relative_mismatch": abs(delivered - dissipated - stored) / scale}
+
+    def integral(self, values) -> float:
+        """Time integral of ``values`` (one per state) by the steps' own rule (see the
+        module notes)."""
+        t = np.asarray(self.time_s, dtype=float)
+        v = np.asarray(values, dtype=float)
+        if t.size < 2:
+            return 0.0
+        width = np.diff(t)
+        euler = np.array([s == "euler" for s in self.steps[1:]], dtype=bool)
+        per_step = np.where(euler, v[1:], 0.5 * (v[1:] + v[:-1])) * width
+        return float(per_step.sum())
 
     def record(self) -> dict:
         """The ``series`` block of results.json."""

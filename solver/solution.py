@@ -33,6 +33,7 @@ class Solution:
     x_rate: np.ndarray | None = None  # dx/dt of a transient state; None for phasors
     time_s: float | None = None
     nonlinear: dict | None = None  # saturable materials: iterations, converged, residual
+    step: str | None = None  # transient: the step that reached this state, "euler" or "bdf2"
 
     @property
     def rate(self) -> np.ndarray:

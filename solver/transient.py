@@ -159,11 +159,12 @@ def march(system, end_s: float, step_s: float, scheme: str = "bdf2", backend: st
         x_prev, x = x, x_new
         if progress and (n % max(steps // 20, 1) == 0 or n == steps):
             progress(f"step {n}/{steps}, t = {t:.4g} s")
+        step = "bdf2" if use_bdf2 else "euler"
         if report is None:
-            yield Solution(system, 0.0, x.astype(complex), rate.astype(complex), t)
+            yield Solution(system, 0.0, x.astype(complex), rate.astype(complex), t, step=step)
         else:
             yield Solution(nonlinear.state_system(x), 0.0, x.astype(complex),
-                           rate.astype(complex), t, nonlinear=report.record())
+                           rate.astype(complex), t, nonlinear=report.record(), step=step)
     log.info("marched %d steps (%s, %s) in %.2f s", steps, scheme, name, time.perf_counter() - t0)
 
 

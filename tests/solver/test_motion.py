@@ -174,8 +174,8 @@ def test_axisymmetric_translation_drags_either_way():
 def test_transient_motion_energy_balance():
     """A coil ramped up beside a billet moving at 30 m/s (BDF2, upwinding on): the
     mechanical energy is a third of what is delivered, and counting it closes the energy
-    balance (delivered = losses + stored) as well as in the same model at rest, the
-    residual mismatch being the time bookkeeping's, which halves with the step."""
+    balance (delivered = losses + stored); at rest the mismatch is the time
+    discretisation's, and falls as the step squared (BDF2)."""
     from dataclasses import replace
 
     from whorl.postprocess.series import SeriesRecorder
@@ -194,11 +194,17 @@ def test_transient_motion_energy_balance():
         return bal, np.trapezoid(rec.mechanical, rec.time_s)
 
     moving, mechanical = run(30.0, 1e-4)
-    finer, _ = run(30.0, 5e-5)
     still, _ = run(0.0, 1e-4)
+    finer, _ = run(0.0, 5e-5)
+    # without the mechanical energy the balance would be off by more than a quarter; with
+    # it, within the 1e-2 that streamline upwinding leaves in the power balance (its
+    # weighting adds terms that are not losses; README, "What is verified"): 0.4 % here
     assert mechanical > 0.25 * moving["delivered_j"]
-    assert moving["relative_mismatch"] < 1.2 * still["relative_mismatch"]
-    assert finer["relative_mismatch"] < 0.6 * moving["relative_mismatch"]
+    assert moving["relative_mismatch"] < 0.01
+    # at rest, the time bookkeeping's error alone: second order in the step (0.19 % and
+    # 0.048 % measured; the ramp's kinks are integrated by the steps' own rule)
+    assert still["relative_mismatch"] < 0.005
+    assert finer["relative_mismatch"] < 0.35 * still["relative_mismatch"]
 
 
 def test_rotation_torque_is_the_moment_of_the_force():
