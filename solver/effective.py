@@ -61,6 +61,7 @@ SHRINK = 0.5
 ALPHA = 0.6
 GROW = 1.5
 ANDERSON_DEPTH = 4  # earlier iterates combined by the accelerated iteration
+ANDERSON_RESET = 4.0  # its history is dropped when the change exceeds this times the least
 STEP_LIMIT = np.log(10.0)  # nu changes by at most this factor (as a log) in one iteration
 _GAUSS = np.polynomial.legendre.leggauss(48)
 
@@ -101,7 +102,7 @@ class EffectiveCurve:
         # B_1 is increasing in H_m: bisection on log H_m (vectorised)
         lo = np.full_like(bm, np.log(self.hm[0]) - 30)
         hi = np.log(bm / MU0) + 1.0  # B_1 >= mu0 H_m, so H_m <= B_m / mu0
-        for _ in range(70):
+        for _ in range(48):  # the bracket is < 60 wide in log H_m: 60 / 2^48 < 1e-12
             mid = 0.5 * (lo + hi)
             h = np.exp(mid)
             above = MU0 * h + m * self.magnetisation(h) > bm
@@ -162,7 +163,8 @@ def start_reluctivity(sat):
 
 
 def iterate(linear, sat, nu, what: str, tolerance: float = NU_TOL,
-            max_iterations: int = MAX_ITERATIONS, accelerate: bool = False):
+            max_iterations: int = MAX_ITERATIONS, accelerate: bool = False,
+            alpha: float = ALPHA, memory: list | None = None):
     """The relaxed fixed-point iteration of the module docstring.
 
     Parameters
@@ -192,9 +194,10 @@ def iterate(linear, sat, nu, what: str, tolerance: float = NU_TOL,
     (x, nu, report): the last solution, the reluctivities it belongs to, and a record
     (iterations, converged, residual, method).
     """
-    alpha, change_before = ALPHA, np.inf
+    change_before = np.inf
     history = []
-    steps, residuals = [], []  # Anderson: log nu and weighted residuals of earlier iterates
+    pairs = [] if memory is None else memory  # Anderson: (change of log nu, of residual)
+    weight, last = None, None
     for _ in range(max_iterations):
         x = linear(nu)
         from_b, from_h = effective_reluctivity(sat, x, nu)
@@ -210,23 +213,22 @@ def iterate(linear, sat, nu, what: str, tolerance: float = NU_TOL,
             alpha = min(alpha * GROW, ALPHA)
         change_before = change
         residual = np.log(new / nu)
-        if accelerate and not grew:
-            weight = np.sqrt(sat.element_flux_density(x) ** 2 * _volumes(sat))
-            steps.append(np.log(nu))
-            residuals.append(residual * weight)
-            del steps[:-ANDERSON_DEPTH - 1], residuals[:-ANDERSON_DEPTH - 1]
-            step = alpha * residual
-            if len(steps) > 1:
-                d_f = np.diff(np.array(residuals), axis=0).T
-                d_u = np.diff(np.array(steps), axis=0).T
-                gamma = np.linalg.lstsq(d_f, residuals[-1], rcond=None)[0]
-                # u_next = u + a f - (dU + a dF) gamma, with the unweighted residual f
-                unweighted = d_f / np.where(weight > 0, weight, 1.0)[:, None]
-                step = alpha * residual - (d_u + alpha * unweighted) @ gamma
-        else:
-            steps.clear()
-            residuals.clear()
-            step = alpha * residual
+        step = alpha * residual
+        if accelerate:
+            if weight is None:  # each element's share of B^2 dV, fixed for the iteration
+                weight = np.sqrt(sat.element_flux_density(x) ** 2 * _volumes(sat))
+            if change > ANDERSON_RESET * min(history):
+                pairs.clear()
+            elif last is not None:
+                pairs.append((np.log(nu) - last[0], residual - last[1]))
+                del pairs[:-ANDERSON_DEPTH]
+            last = (np.log(nu), residual)
+            if pairs:
+                d_u = np.array([p[0] for p in pairs]).T
+                d_f = np.array([p[1] for p in pairs]).T
+                gamma = np.linalg.lstsq(d_f * weight[:, None], residual * weight,
+                                        rcond=None)[0]
+                step = step - (d_u + alpha * d_f) @ gamma
         step = np.clip(step, -STEP_LIMIT, STEP_LIMIT)
         nu = nu * np.exp(step)
     else:

@@ -7,7 +7,7 @@ are the free unknowns; :meth:`Reduced.expand` puts a solution back together.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 import scipy.sparse as sp
@@ -69,3 +69,11 @@ def reduce(system) -> Reduced:
     free = np.setdiff1d(np.arange(n), fixed)
     return Reduced(S0[free][:, free], S1[free][:, free], S0[free][:, fixed], S1[free][:, fixed],
                    P, renumber, free, fixed, fixed_values, n)
+
+
+def with_stiffness(red: Reduced, S0) -> Reduced:
+    """``red`` with a new S0 (full numbering, same unknowns and conditions): only S0's
+    blocks are recomputed (a heating study's effective iteration changes only S0)."""
+    S0 = (red.P.T @ S0 @ red.P).tocsc() if red.P is not None else S0.tocsc()
+    rows = S0[red.free]
+    return replace(red, S0_ff=rows[:, red.free], S0_fd=rows[:, red.fixed])
