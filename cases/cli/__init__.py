@@ -11,6 +11,7 @@ from __future__ import annotations
 import argparse
 import importlib
 import logging
+import os
 import sys
 import time
 
@@ -59,7 +60,9 @@ def main(argv: list[str] | None = None) -> int:
     logging.getLogger().addHandler(console)
     logging.getLogger().setLevel(logging.DEBUG if args.verbose else logging.WARNING)
     try:
-        return int(args.handler(args) or 0)
+        status = int(args.handler(args) or 0)
+        sys.stdout.flush()  # a closed pipe shows here, inside the handler of BrokenPipeError
+        return status
     except CaseError as exc:
         print(f"whorl: bad input: {exc}", file=sys.stderr)
         return EXIT_BAD_INPUT
@@ -72,6 +75,13 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("whorl: interrupted", file=sys.stderr)
         return 130
+    except BrokenPipeError:
+        # the reader of our output went away (``whorl run CASE | head``): every file was
+        # written before the summary is printed; stop quietly (the recipe of Python's
+        # signal module documentation, "Note on SIGPIPE")
+        devnull = os.open(os.devnull, os.O_WRONLY)
+        os.dup2(devnull, sys.stdout.fileno())
+        return EXIT_FAILED
     finally:
         logging.getLogger().removeHandler(console)
 

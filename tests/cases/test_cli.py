@@ -36,3 +36,17 @@ def test_readme_commands_are_what_ci_runs():
     demo = re.search(r"whorl run (\S+)", run_demo).group(1)
     assert (ROOT / demo).is_file()
     assert run_tests in (ROOT / ".ci" / "run").read_text()
+
+
+def test_a_closed_pipe_ends_quietly():
+    """`whorl materials | head -1`: the reader leaves early; no traceback, status 1."""
+    import subprocess
+    import sys
+
+    proc = subprocess.Popen([sys.executable, "-m", "whorl.cases.cli", "materials"],
+                            stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+    proc.stdout.close()  # the reader is gone before anything is written
+    err = proc.stderr.read().decode()
+    proc.stderr.close()
+    assert proc.wait(timeout=60) == 1
+    assert "Traceback" not in err and "BrokenPipeError" not in err, err
