@@ -6,7 +6,7 @@ coefficients (z_0 = 1). Every quantity the results record sums over a region or 
 at a point is linear or quadratic in x, so it is a small dense operation on z once its
 operator has been projected on X, the offline/online split of reduced-basis methods
 (Hesthaven, Rozza and Stamm, *Certified Reduced Basis Methods for Parametrized Partial
-Differential Equations*, Springer 2016, sec. 2.5 and 3.x):
+Differential Equations*, Springer 2016; cited from memory):
 
 - region totals (``kappa`` = depth or 2 pi, ``w`` = 1 or r, e = -j omega a + u v_f the
   electric field with coefficients c = [-j omega z, u]): the values at the quadrature

@@ -158,6 +158,25 @@ def test_estimate_bounds_the_true_error_as_the_tolerance_loosens():
         assert np.all(true_err <= estimate + 1e-12)
 
 
+def test_the_fixed_factorisations_bound_alone_bounds_the_true_error(monkeypatch):
+    """The estimate through the first expansion frequency's factorisation alone (no
+    neighbours' bounds): every estimate still bounds its true error at tolerances 1e-3 and
+    1e-5, and the estimate solved once per basis vector (not once per basis vector and
+    expansion frequency)."""
+    from whorl.solver import frequency_rom
+
+    monkeypatch.setattr(frequency_rom, "REFINE", False)
+    case = parse_case(HEATER)
+    problem = model.problem(case, build_mesh(model.sized_geometry(case)))
+    freqs = list(np.geomspace(200, 50e3, 9))
+    for tol in (1e-3, 1e-5):
+        _, _, true_err, record = compare(problem, freqs, tolerance=tol)
+        estimate = np.array(record["estimated_error"])
+        assert np.all(estimate <= tol)
+        assert np.all(true_err <= estimate + 1e-12)
+        assert record["estimate_solves"] == record["basis_size"]
+
+
 def test_round_wire_internal_impedance_over_a_range_against_bessel():
     """R and omega L_int of the wire within 1 % of Z = k J0(ka) / (2 pi a sigma J1(ka)),
     k^2 = -j omega mu0 sigma, at 10 frequencies from a / delta = 0.5 to 10 (the
