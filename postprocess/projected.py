@@ -78,11 +78,12 @@ def _chunks(system, X, elems, chunk=4000):
 class _Region:
     """The projected operators of one region (see the module)."""
 
-    def __init__(self, proj, name):
+    def __init__(self, proj, name, elems):
+        """``elems``: the elements the region's totals sum over (the background's include
+        the exterior disk of an open boundary, as in :func:`.regions.region_totals`)."""
         system, X = proj.system, proj.Xa
         problem = system.problem
         form = system.form
-        elems = problem.mesh.elements(name)
         self.name = name
         self.area = float(system.basis.dx[elems].sum())
         self.u_row = None  # row of X of the branch voltage u of this region
@@ -188,7 +189,9 @@ class Projections:
         problem = system.problem
         tagged = problem.mesh
         self.names = (tagged.background, *tagged.regions)
-        self.regions = {name: _Region(self, name) for name in self.names}
+        index = tagged.region_of_element()
+        self.regions = {name: _Region(self, name, np.flatnonzero(index == i))
+                        for i, name in enumerate(self.names)}
         self.flux_rows = {}
         nf = system.n_field
         for s in problem.sources:
@@ -239,11 +242,12 @@ def terminal_values(solution, source) -> tuple[complex, complex, complex]:
 
 
 def region_values(solution) -> dict:
-    """name -> (current, loss, energy, (int J conj(B_0) dV, int J conj(B_1) dV))."""
+    """name -> (area, current, loss, energy, (int J conj(B_0) dV, int J conj(B_1) dV))."""
     proj = projections(solution)
     currents = source_currents(solution)
-    return {name: r.totals(solution.coefficients, solution.omega, solution.system.kappa,
-                           currents) for name, r in proj.regions.items()}
+    return {name: (r.area, *r.totals(solution.coefficients, solution.omega,
+                                     solution.system.kappa, currents))
+            for name, r in proj.regions.items()}
 
 
 def point_values(solution, cells, ref):

@@ -136,9 +136,8 @@ def _projected_totals(solution) -> dict[str, RegionTotals]:
     peak = loss_q.max(axis=1)
     axisymmetric = solution.problem.axisymmetric
     out = {}
-    for i, (name, (current, loss, energy, flux_j)) in enumerate(values.items()):
+    for i, (name, (area, current, loss, energy, flux_j)) in enumerate(values.items()):
         elems = tagged.elements(name)
-        area = float(solution.system.basis.dx[elems].sum())
         if axisymmetric:  # f = (Re J conj(Bz), -Re J conj(Br)); a ring's Fr cancels
             force, radial = (0.0, float(-flux_j[0].real)), float(flux_j[1].real)
         else:             # f = (-Re J conj(By), Re J conj(Bx))
