@@ -518,6 +518,7 @@ class _Sweep:
             else:
                 out.append(ReducedSolution(self.system, f, space,
                                            np.concatenate([[1.0], self.answers[f]])))
+                space.members.append(out[-1])
         return out
 
 

@@ -92,17 +92,22 @@ class ReducedSpace:
     def __init__(self, columns: np.ndarray):
         self.columns = columns
         self.cache: dict = {}
+        self.members: list = []  # the solutions made of it, in order (batched evaluation)
 
     @property
     def size(self) -> int:
         return self.columns.shape[1]
 
     def expand(self, z) -> np.ndarray:
-        """``columns @ z`` (real columns times complex z without a complex copy)."""
+        """``columns @ z`` for coefficients z (m + 1,) or (m + 1, k): real columns times
+        complex z in one product, without a complex copy of the columns."""
         z = np.asarray(z)
         if np.iscomplexobj(self.columns):
             return self.columns @ z
-        return self.columns @ z.real + 1j * (self.columns @ z.imag)
+        k = 1 if z.ndim == 1 else z.shape[1]
+        both = self.columns @ np.hstack([z.real.reshape(-1, k), z.imag.reshape(-1, k)])
+        out = both[:, :k] + 1j * both[:, k:]
+        return out[:, 0] if z.ndim == 1 else out
 
     def rows(self, index, z) -> np.ndarray:
         """Some unknowns of ``columns @ z``: the rows ``index`` only."""
