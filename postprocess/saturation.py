@@ -6,8 +6,8 @@ the curve's last value). Pictures show RMS magnitudes; in a harmonic solution th
 effective permeability is taken at the peak amplitude sqrt(2) |B|_RMS (see
 :mod:`whorl.solver.effective`), so the RMS level marked is B_s / sqrt(2). In a static or
 instantaneous solution the level is B_s itself. Elements whose magnetisation is reduced
-(``Problem.element_magnetisation`` below 1, the Curie transition of a heating study) are
-not marked: their curve is not the material's.
+(near or above the Curie point at their temperature, or by ``Problem.element_magnetisation``)
+are not marked: their curve is not the material's.
 """
 
 from __future__ import annotations
@@ -16,6 +16,8 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
+
+from whorl.solver.coefficients import magnetisation
 
 
 @dataclass(frozen=True)
@@ -42,8 +44,7 @@ def saturation_marks(solution, b_cell) -> list[SaturationMark]:
     problem = solution.problem
     tagged = problem.mesh
     n_el = tagged.mesh.t.shape[1]
-    m = problem.element_magnetisation
-    full = np.ones(n_el, dtype=bool) if m is None else np.asarray(m) >= 0.999
+    full = magnetisation(problem) >= 0.999  # the Curie factor and any given multiplier
     by_material: dict = {}
     for region in tagged.regions:
         material = problem.materials.get(region)

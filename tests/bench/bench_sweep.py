@@ -19,6 +19,7 @@ from __future__ import annotations
 
 import argparse
 import re
+import shutil
 import tempfile
 import time
 from pathlib import Path
@@ -58,6 +59,8 @@ def variant(path: Path, folder: Path, order2: bool) -> Path:
         name = name.replace(".toml", "-order2.toml")
     copy = folder / name
     copy.write_text(text, encoding="utf-8")
+    for data in path.parent.glob("*.csv"):  # data files the case reads (a B-H curve)
+        shutil.copy(data, folder / data.name)
     return copy
 
 
