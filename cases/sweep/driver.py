@@ -87,14 +87,15 @@ def sweep_folder(case, out=None) -> Path:
 
 
 def load_sweep(path, overrides=None, max_points: int = DEFAULT_MAX_POINTS, vary=None,
-               out=None):
+               out=None, resume: bool = True):
     """The case and its points (list of override dicts), checked. ``vary`` (from
     ``--vary NAME=V1,V2``: name -> list of values) replaces the case's ``[sweep]``
-    table by a grid over those values. Without ``vary``, a sweep folder (under ``out``)
-    whose sweep was started with ``--vary`` resumes with the values it recorded."""
+    table by a grid over those values. Without ``vary`` (and with ``resume``), a sweep
+    folder (under ``out``) whose sweep was started with ``--vary`` resumes with the values
+    it recorded; ``resume=False`` (``--restart``) takes the case's own table."""
     overrides = dict(overrides or {})
     case = load_case(path, overrides, max_points)
-    if not vary:
+    if not vary and resume:
         vary = recorded_vary(sweep_folder(case, out))
         if vary:
             log.info("resuming the sweep started with %s (recorded in its store)",
@@ -183,7 +184,7 @@ def run_sweep(path, overrides=None, out=None, workers: int | None = None, schedu
     SweepOutcome
     """
     overrides = dict(overrides or {})
-    case, specs = load_sweep(path, overrides, max_points, vary, out)
+    case, specs = load_sweep(path, overrides, max_points, vary, out, resume=not restart)
     folder = sweep_folder(case, out)
     make_sweep_folder(folder, output_key(out))
     with SweepLock(folder):

@@ -62,6 +62,10 @@ def test_vary_gives_the_grid_and_the_summary_has_source_numbers(varied, capsys):
     assert main(["sweep", str(path), "--workers", "1"]) == 0
     with open(folder / "summary.csv", newline="") as f:
         assert len(list(csv.DictReader(f))) == 4
+    # --restart without --vary starts the case's own [sweep] table (one point)
+    assert main(["sweep", str(path), "--workers", "1", "--restart", "-q"]) == 0
+    with open(folder / "summary.csv", newline="") as f:
+        assert len(list(csv.DictReader(f))) == 1
 
 
 def test_vary_checks_names_and_values(tmp_path):
