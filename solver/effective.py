@@ -306,9 +306,17 @@ class EffectiveSystem:
     def state_system(self, nu_sat):
         """A copy of the system carrying the effective reluctivities ``nu_sat``."""
         sat = self.saturable
-        nu = np.array(self.system.nu, float)
-        nu[sat.elements] = nu_sat
-        nu_q = np.array(self.system.nu_q, float, copy=True)
-        nu_q[sat.elements] = nu_sat[:, None]
-        return replace(self.system, nu=nu, nu_q=nu_q,
-                       S0=(self.base.S0 + sat.stiffness(nu_sat)).tocsr())
+        return with_reluctivity(
+            self.system, sat, nu_sat,
+            lambda nu: (self.base.S0 + sat.stiffness(nu[sat.elements])).tocsr())
+
+
+def with_reluctivity(system, sat, nu_sat, stiffness):
+    """A copy of ``system`` whose saturable elements (of ``sat``) carry the reluctivities
+    ``nu_sat`` (m/H, one per element, constant over it), with ``S0 = stiffness(nu)`` for the
+    resulting reluctivity ``nu`` of every element."""
+    nu = np.array(system.nu, float)
+    nu[sat.elements] = nu_sat
+    nu_q = np.array(system.nu_q, float, copy=True)
+    nu_q[sat.elements] = nu_sat[:, None]
+    return replace(system, nu=nu, nu_q=nu_q, S0=stiffness(nu))

@@ -51,7 +51,12 @@ import numpy as np
 from whorl.solver import linalg
 from whorl.solver.coefficients import element_regions, magnetisation
 from whorl.solver.constants import MU0
-from whorl.solver.effective import effective_reluctivity, iterate, start_reluctivity
+from whorl.solver.effective import (
+    effective_reluctivity,
+    iterate,
+    start_reluctivity,
+    with_reluctivity,
+)
 from whorl.solver.errors import SolveError
 from whorl.solver.reassembly import Reassembler, applies
 from whorl.solver.reduction import reduce, with_stiffness
@@ -112,13 +117,13 @@ class FieldSolver:
         self.memory = []       # secant pairs of the accelerated iteration, kept across solutions
 
     def _changing(self, problem, heated_elements):
-        """Elements whose coefficients may change: the heated and the saturable ones."""
+        """Elements whose coefficients may change, the heated and the saturable ones, and
+        the names of their regions."""
         regions = element_regions(problem)
-        sat = [regions[n] for n in saturable_regions(problem)] if self.saturable else []
-        return np.union1d(np.asarray(heated_elements), np.concatenate([[], *sat])
-                          ).astype(np.int64), [*self.study.heated,
-                                               *(saturable_regions(problem)
-                                                 if self.saturable else [])]
+        names = saturable_regions(problem) if self.saturable else []
+        elements = np.union1d(np.asarray(heated_elements),
+                              np.concatenate([[], *(regions[n] for n in names)]))
+        return elements.astype(np.int64), [*self.study.heated, *names]
 
     def _system(self, problem, heated_elements):
         if self.reassembler is None:
@@ -201,11 +206,7 @@ class FieldSolver:
         reduced = reduce(system)  # S1 and the conditions; S0's blocks follow each iterate
 
         def linear(nu_sat):
-            nu = np.array(system.nu, float)
-            nu[sat.elements] = nu_sat
-            nu_q = np.array(system.nu_q, float, copy=True)
-            nu_q[sat.elements] = nu_sat[:, None]
-            state = replace(system, nu=nu, nu_q=nu_q, S0=stiffness(nu))
+            state = with_reluctivity(system, sat, nu_sat, stiffness)
             found["drive"], found["solution"] = self._drive(
                 state, problem, time_s, with_stiffness(reduced, state.S0))
             return found["solution"].x
