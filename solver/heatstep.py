@@ -16,7 +16,11 @@ until the temperatures move less than ``tolerance_k``: each correction solves
 the residual with a factorisation kept across iterations and steps (the chord
 method), refreshed when the step size or the active surfaces change or the
 corrections shrink slowly. A step where nothing depends on temperature is one
-exact solve.
+exact solve. The residual of each iteration is formed from the capacity and
+conduction matrices re-weighted in place (:mod:`.elementwise`), without adding
+them up; the step's matrix (a0/h C + K + E) is formed only when it is
+factorised, in real arithmetic (a real Cholesky where the backend has one,
+:func:`.linalg.positive_definite`).
 Radiation eps sigma_SB (T^4 - T_a^4) is linearised at the latest iterate
 (Newton's tangent, per facet at its mean temperature), so the same iteration
 converges quadratically for radiation alone.
@@ -88,9 +92,10 @@ class HeatStepper:
         self._materials = {name: materials[name] for name in set(domain.region)}
         self._masks = {name: domain.region == name for name in self._materials}
         self._linear = None
-        # The linear-solver backend of the field, kept across steps (the sparsity
-        # pattern never changes, so a backend that can keeps its analysis).
-        self._factorize = linalg.session(linalg.choose(backend)[1])
+        # The field's linear-solver backend in real arithmetic (the matrix is real,
+        # symmetric and positive definite), kept across steps: the sparsity pattern
+        # never changes, so a backend that can keeps its analysis.
+        self._factorize = linalg.positive_definite(linalg.choose(backend)[1])
         self._chord, self._chord_key = None, None
 
     # -- properties ------------------------------------------------------------------
@@ -122,11 +127,18 @@ class HeatStepper:
             return out
         return np.asarray(at_temperature(eps, tf)) * np.ones(tf.size)
 
+    def stored_energy(self, te, rise) -> float:
+        """Heat taken up by a temperature ``rise`` (K per unknown) at heat capacities
+        evaluated at element temperatures ``te`` (J): int rho c rise dV, which equals
+        the sum of C rise (C the capacity matrix) because the shape functions sum to 1
+        on every element, computed per element as rho c V_e times the mean rise."""
+        mean_rise = self.domain.element_temperature(rise)
+        return float(np.sum(self.heat_capacity(te) * self.domain.element_volume * mean_rise))
+
     def _factor(self, matrix):
-        """A solver of the step's symmetric positive definite matrix (complex backends take
-        it as complex with zero imaginary part)."""
-        solve = self._factorize(matrix.astype(complex).tocsc())
-        return lambda rhs: np.real(solve(rhs.astype(complex)))
+        """A solver of the step's real symmetric positive definite matrix (real Cholesky
+        where the backend offers it, see :func:`.linalg.positive_definite`)."""
+        return self._factorize(matrix.tocsr())
 
     def linear(self, time_s: float) -> bool:
         """True when nothing depends on temperature (one solve per step is exact)."""
@@ -199,21 +211,30 @@ class HeatStepper:
         if linear and self._chord_key != key:
             self._chord = None  # a linear step needs the exact matrix: one solve
         previous = None
+        capacity_form, conduction_form = self.domain.capacity, self.domain.conduction
         for iteration in range(1, self.max_iterations + 1):  # noqa: B007 (used after)
             te = self.domain.element_temperature(guess)
-            capacity = self.domain.capacity.matrix(self.heat_capacity(te))
-            stiffness = self.domain.conduction.matrix(self.conductivity(te))
+            # Matrices on the shared pattern of the element forms; never changed in place.
+            capacity = capacity_form.with_values(
+                capacity_form.values(self.heat_capacity(te)), copy=False)
+            stiffness = conduction_form.with_values(
+                conduction_form.values(self.conductivity(te)), copy=False)
             exchange, load = self.surface_terms(guess, mid)
-            matrix = (a0 / h) * capacity + stiffness
+            # rhs - A guess with A = (a0/h) C + K + E, without forming A.
+            residual = (source + load
+                        + capacity @ ((a1 * t_n - a2 * t_nm1 - a0 * guess) / h)
+                        - stiffness @ guess)
             if exchange is not None:
-                matrix = matrix + exchange
-            rhs = source + load + capacity @ (a1 * t_n - a2 * t_nm1) / h
+                residual -= exchange @ guess
             if self._chord is None or self._chord_key[1] != key[1] \
                     or abs(self._chord_key[0] / key[0] - 1) > (1e-12 if linear else 0.25):
+                matrix = (a0 / h) * capacity + stiffness
+                if exchange is not None:
+                    matrix = matrix + exchange
                 self._chord, self._chord_key = self._factor(matrix), key
             # The chord method: the correction from a factorisation kept across
             # iterations and steps (refreshed when it converges slowly or the step changes).
-            delta = self._chord(rhs - matrix @ guess)
+            delta = self._chord(residual)
             if not np.all(np.isfinite(delta)):
                 raise SolveError("the heat equation gave non-finite temperatures")
             guess = guess + delta
@@ -235,7 +256,6 @@ class HeatStepper:
         else:
             te = self.domain.element_temperature(0.5 * (guess + t_n))
             lost = 0.5 * (self.surface_power(guess, mid) + self.surface_power(t_n, mid)) * h
-        capacity = self.domain.capacity.matrix(self.heat_capacity(te))
-        stored = float(np.sum(capacity @ (guess - t_n)))
+        stored = self.stored_energy(te, guess - t_n)
         induced = float(np.sum(source)) * h
         return StepResult(guess, iteration, induced, stored, lost)

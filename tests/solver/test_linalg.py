@@ -146,3 +146,51 @@ def test_singular_system_is_a_solve_error():
         if linalg.BACKENDS[name].available():
             with pytest.raises(SolveError, match="singular"):
                 linalg.BACKENDS[name](a)(np.array([1.0, 0.0], dtype=complex))
+
+
+def _spd(n=30, shift=1.0):
+    """A real symmetric positive definite matrix: a 2D five-point Laplacian plus ``shift``
+    times the identity (a heat step's conduction plus capacity in miniature)."""
+    import scipy.sparse as sp
+
+    t = sp.diags([-1.0, 2.0, -1.0], [-1, 0, 1], shape=(n, n))
+    eye = sp.identity(n)
+    return (sp.kron(t, eye) + sp.kron(eye, t) + shift * sp.identity(n * n)).tocsr()
+
+
+def _complex_only(matrix):
+    """A backend without a real path: ``positive_definite`` must hand it complex matrices."""
+    assert np.iscomplexobj(matrix.data)
+    return linalg.superlu(matrix)
+
+
+@pytest.mark.parametrize("backend", [*DIRECT, "complex-only"])
+def test_positive_definite_solves_real_systems_to_round_off(backend):
+    """Each backend's real symmetric positive definite session: real solutions with a
+    residual at round-off, for two matrices of one pattern in turn (PARDISO keeps the
+    analysis of the first), and a real Cholesky refuses an indefinite matrix."""
+    if backend == "complex-only":
+        factorize = _complex_only
+    elif linalg.BACKENDS[backend].available():
+        factorize = linalg.BACKENDS[backend]
+    else:
+        pytest.skip(f"{backend} is not installed (pip install 'whorl[fast]')")
+    session = linalg.positive_definite(factorize)
+    b = np.random.default_rng(3).standard_normal(900)
+    for shift in (1.0, 1e-3):
+        a = _spd(shift=shift)
+        x = session(a)(b)
+        assert x.dtype == np.float64
+        # a backward-stable solve: |b - A x| of the order of eps |A| |x| (eps = 2.2e-16)
+        norm_a = abs(a).sum(axis=1).max()
+        assert np.abs(a @ x - b).max() <= 1e-13 * norm_a * np.abs(x).max()
+    if backend == "pardiso":
+        with pytest.raises(SolveError, match="not positive definite"):
+            session(_spd(shift=-1.0))
+
+
+def test_positive_definite_pardiso_refuses_complex_matrices():
+    if not linalg.pardiso_available():
+        pytest.skip("pardiso is not installed")
+    with pytest.raises(SolveError, match="real symmetric positive definite"):
+        linalg.positive_definite(linalg.pardiso)(_spd().astype(complex))
