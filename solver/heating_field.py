@@ -32,7 +32,10 @@ solutions, the permeability much only where an element crosses the Curie point),
 extrapolated in time (``PREDICT``); the iteration is Anderson-accelerated
 (``ACCELERATE``) and keeps its secant pairs from one field solution to the next unless
 the Curie transition moved. These change the number of linear solutions, not the
-result: the stopping rule is the same.
+result: the stopping rule is the same. Each iterate's matrix is the last one re-weighted
+on the saturable elements (:mod:`.reweighted`: one sparse product, the pattern and so the
+backend's analysis kept), where the fixed unknowns are zero; the system carrying the
+effective reluctivities is built once, for the converged solution.
 
 Not used, measured: solving each iterate by GMRES preconditioned with the last
 factorisation instead of factorising it. On the shaft demo (4.5e4 unknowns, PARDISO) a
@@ -52,6 +55,7 @@ from whorl.solver import linalg
 from whorl.solver.coefficients import element_regions, magnetisation
 from whorl.solver.constants import MU0
 from whorl.solver.effective import (
+    NU_TOL,
     effective_reluctivity,
     iterate,
     start_reluctivity,
@@ -60,6 +64,7 @@ from whorl.solver.effective import (
 from whorl.solver.errors import SolveError
 from whorl.solver.reassembly import Reassembler, applies
 from whorl.solver.reduction import reduce, with_stiffness
+from whorl.solver.reweighted import ReweightedMatrix
 from whorl.solver.saturable import base_matrix, has_saturable, saturable_part
 from whorl.solver.solution import Solution
 from whorl.solver.supply import find_drive, with_drive
@@ -67,6 +72,9 @@ from whorl.solver.system import assemble
 
 ACCELERATE = True
 """Anderson acceleration of the effective iteration (see :func:`.effective.iterate`)."""
+TOLERANCE = NU_TOL
+"""Stopping rule of the effective iteration in heating field solutions (see
+:func:`.effective.iterate`)."""
 PREDICT = True
 """Start each warm field solution from the reluctivities extrapolated in time from the last
 two (their ratio, to the power of the ratio of the time steps, at most 1.5; each element's
@@ -115,6 +123,7 @@ class FieldSolver:
         self.times = []        # times of the saturable field solutions
         self.m_last = (None, None)  # magnetisation multipliers at the last two
         self.memory = []       # secant pairs of the accelerated iteration, kept across solutions
+        self.reweighted = None  # the factorised matrix as a function of nu (see .reweighted)
 
     def _changing(self, problem, heated_elements):
         """Elements whose coefficients may change, the heated and the saturable ones, and
@@ -138,12 +147,13 @@ class FieldSolver:
             return assemble(problem)
         return self.reassembler.system(problem)
 
-    def _drive(self, system, problem, time_s, red=None):
+    def _drive(self, system, problem, time_s, red=None, matrix=None):
         """The supply's drive for the (linear) ``system`` and its solution; returns
-        (DriveState, Solution). ``red``: the system reduced already."""
+        (DriveState, Solution). ``red``: the system reduced already; ``matrix``: its
+        matrix on the free unknowns, when known already."""
         red = reduce(system) if red is None else red
         omega = 2 * np.pi * self.study.frequency_hz
-        solve = self.factorize(red.matrix(1.0, 1j * omega))
+        solve = self.factorize(red.matrix(1.0, 1j * omega) if matrix is None else matrix)
         linear = not np.any(red.fixed_values)  # superposition of one solution per source
         unit = {}
 
@@ -204,21 +214,35 @@ class FieldSolver:
             # another map
         found = {}
         reduced = reduce(system)  # S1 and the conditions; S0's blocks follow each iterate
+        if not np.any(reduced.fixed_values):  # the matrix is affine in nu: re-weight it
+            if self.reweighted is None:
+                self.reweighted = ReweightedMatrix(reduced, sat)
+            omega = 2 * np.pi * self.study.frequency_hz
+            self.reweighted.rebase(reduced.matrix(1.0, 1j * omega),
+                                   system.nu[sat.elements])
 
-        def linear(nu_sat):
-            state = with_reluctivity(system, sat, nu_sat, stiffness)
-            found["drive"], found["solution"] = self._drive(
-                state, problem, time_s, with_stiffness(reduced, state.S0))
-            return found["solution"].x
+            def linear(nu_sat):
+                found["drive"], found["solution"] = self._drive(
+                    system, problem, time_s, reduced, self.reweighted.matrix(nu_sat))
+                return found["solution"].x
+        else:
+            def linear(nu_sat):
+                state = with_reluctivity(system, sat, nu_sat, stiffness)
+                found["drive"], found["solution"] = self._drive(
+                    state, problem, time_s, with_stiffness(reduced, state.S0))
+                return found["solution"].x
 
         x, nu_sat, report = iterate(linear, sat, start, f"t = {time_s:g} s",
-                                    accelerate=ACCELERATE,
+                                    tolerance=TOLERANCE, accelerate=ACCELERATE,
                                     memory=self.memory)
         self.nu_before = self.nu_sat
         self.times.append(time_s)
         self.m_last = (m, self.m_last[0])
         self.nu_sat, self.x_last = nu_sat, x
-        solution = found["solution"]
+        # the solution's system carries the effective reluctivities (losses, records)
+        state = with_reluctivity(system, sat, nu_sat, stiffness)
+        solution = replace(found["solution"],
+                           system=replace(state, problem=found["solution"].system.problem))
         solution.nonlinear = report
         return found["drive"], solution, report["iterations"]
 

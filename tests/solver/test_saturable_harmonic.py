@@ -82,3 +82,24 @@ def test_multiplier_zero_is_nonmagnetic_and_warm_start():
     again = eff.solve(F, start=nu)
     assert again.nonlinear["iterations"] <= 2
     assert first.nonlinear["iterations"] > again.nonlinear["iterations"]
+
+
+def test_effective_curve_inverse_against_root_finding():
+    """The H amplitude for a given B_1 (Newton's method on the tabulated curve) against
+    SciPy's brentq on the same forward curve, with magnetisation multipliers 0 < m <= 1,
+    m = 0 (vacuum) and amplitudes below the table (linear there)."""
+    from scipy.optimize import brentq
+
+    eff = EffectiveCurve(CURVE)
+    rng = np.random.default_rng(7)
+    b = np.concatenate([10 ** rng.uniform(-9, 1.3, 40), [1e-12, 1.0, 1.9, 2.4]])
+    m = np.concatenate([rng.choice([1.0, 0.5, 1e-3, 0.0, 0.9], 40), [1.0, 0.0, 0.3, 1.0]])
+    h = eff.field_strength(b, m)
+
+    def forward(hm, mm):
+        return 4e-7 * np.pi * hm + mm * eff.magnetisation(hm)
+
+    for bi, mi, hi in zip(b, m, h, strict=True):
+        root = brentq(lambda x: forward(x, mi) - bi, 0.0, bi / (4e-7 * np.pi) * 1.001,
+                      xtol=1e-300, rtol=1e-14)
+        assert hi == pytest.approx(root, rel=1e-11)
