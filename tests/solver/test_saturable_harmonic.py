@@ -96,10 +96,10 @@ def test_effective_curve_inverse_against_root_finding():
     m = np.concatenate([rng.choice([1.0, 0.5, 1e-3, 0.0, 0.9], 40), [1.0, 0.0, 0.3, 1.0]])
     h = eff.field_strength(b, m)
 
-    def forward(hm, mm):
-        return 4e-7 * np.pi * hm + mm * eff.magnetisation(hm)
+    def mismatch(hm, mm, bb):
+        return 4e-7 * np.pi * hm + mm * eff.magnetisation(hm) - bb
 
     for bi, mi, hi in zip(b, m, h, strict=True):
-        root = brentq(lambda x: forward(x, mi) - bi, 0.0, bi / (4e-7 * np.pi) * 1.001,
+        root = brentq(mismatch, 0.0, bi / (4e-7 * np.pi) * 1.001, args=(mi, bi),
                       xtol=1e-300, rtol=1e-14)
         assert hi == pytest.approx(root, rel=1e-11)
