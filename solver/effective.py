@@ -52,6 +52,7 @@ import scipy.sparse as sp
 from whorl.solver.constants import MU0
 from whorl.solver.errors import SolveError
 from whorl.solver.reduction import reduce
+from whorl.solver.reweighted import ReweightedMatrix
 from whorl.solver.saturable import base_matrix, saturable_part
 from whorl.solver.solution import Solution
 
@@ -303,6 +304,10 @@ class EffectiveSystem:
         self.base = replace(system, S0=base_matrix(system, self.saturable))
         self.red = reduce(self.base)
         self.factorize = factorize
+        # where the fixed unknowns are zero, iterates re-weight one matrix (.reweighted)
+        self.reweighted = (None if np.any(self.red.fixed_values)
+                           else ReweightedMatrix(self.red, self.saturable))
+        self._omega = None
 
     def effective_reluctivity(self, x, nu_now):
         """See :func:`effective_reluctivity`."""
@@ -327,9 +332,15 @@ class EffectiveSystem:
     def solve_linear(self, nu_sat, omega, b):
         """The harmonic solution with reluctivity ``nu_sat`` in the saturable elements."""
         red = self.red
-        k_ff, k_fd = self._blocks(self.saturable.stiffness(nu_sat))
-        matrix = (red.matrix(1.0, 1j * omega) + k_ff).tocsc()
-        rhs = red.rhs(b, 1.0, 1j * omega) - k_fd @ red.fixed_values
+        if self.reweighted is not None:
+            if self._omega != omega:  # the base: no saturable stiffness (nu = 0 there)
+                self.reweighted.rebase(red.matrix(1.0, 1j * omega), np.zeros(nu_sat.size))
+                self._omega = omega
+            matrix, rhs = self.reweighted.matrix(nu_sat), red.rhs(b, 1.0, 1j * omega)
+        else:
+            k_ff, k_fd = self._blocks(self.saturable.stiffness(nu_sat))
+            matrix = (red.matrix(1.0, 1j * omega) + k_ff).tocsc()
+            rhs = red.rhs(b, 1.0, 1j * omega) - k_fd @ red.fixed_values
         x = red.expand(self.factorize(matrix)(rhs))
         if not np.all(np.isfinite(x)):
             raise SolveError("the solution is not finite: the system is singular")
