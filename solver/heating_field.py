@@ -55,7 +55,6 @@ from whorl.solver import linalg
 from whorl.solver.coefficients import element_regions, magnetisation
 from whorl.solver.constants import MU0
 from whorl.solver.effective import (
-    NU_TOL,
     effective_reluctivity,
     iterate,
     start_reluctivity,
