@@ -166,6 +166,7 @@ class _Pardiso:
         self.pt = np.zeros(64, dtype=np.int64)
         self.iparm = np.zeros(64, dtype=np.int32)
         self.pattern = None
+        self._gather = None  # see _arrays
         self.mtype = None
         self.n = 0
         self.threads = 1 if positive_definite else threads or len(os.sched_getaffinity(0))
@@ -202,23 +203,37 @@ class _Pardiso:
                 raise _singular(f"PARDISO: {what}")
             raise SolveError(f"PARDISO failed in phase {phase}: {what} (error {err.value})")
 
+    def _arrays(self, matrix, symmetric):
+        """``matrix`` as PARDISO takes it (CSR, sorted; for a symmetric matrix the upper
+        triangle with every diagonal entry stored). The map from the stored entries of
+        ``matrix`` to those of the result is kept for the next matrix of the same pattern
+        (the iterates of a nonlinear solve), which then costs one gather."""
+        m = matrix if matrix.format in ("csr", "csc") else sp.csr_matrix(matrix)
+        key = (symmetric, m.format, m.shape)
+        kept = self._gather
+        if (kept is not None and kept[0] == key and np.array_equal(kept[1], m.indptr)
+                and np.array_equal(kept[2], m.indices)):
+            out = kept[3].copy()
+            take = kept[4]
+            out.data = np.where(take >= 0, m.data[take], 0).astype(m.dtype, copy=False)
+            return out
+        if not m.has_canonical_format:  # duplicate entries: summed, nothing kept
+            return _pardiso_layout(m, symmetric)
+        probe = m.copy()
+        probe.data = np.arange(1, m.nnz + 1, dtype=float)  # where each entry goes
+        out = _pardiso_layout(probe, symmetric)
+        take = np.rint(out.data).astype(np.int64) - 1  # -1: a diagonal entry added as 0
+        self._gather = (key, m.indptr.copy(), m.indices.copy(), out, take)
+        out = out.copy()
+        out.data = np.where(take >= 0, m.data[take], 0).astype(m.dtype, copy=False)
+        return out
+
     def factorize(self, matrix, mnum: int = 1):
         """Factorise ``matrix`` as factorisation number ``mnum`` (1..maxfct); a new sparsity
         pattern starts a new analysis, which ends every earlier factorisation."""
         symmetric = is_symmetric(matrix)
         mtype = 6 if symmetric else 13
-        if symmetric:
-            n = matrix.shape[0]
-            # the upper triangle with every diagonal entry stored (PARDISO asks for it)
-            upper = sp.triu(matrix, format="coo")
-            diag = np.arange(n)
-            csr = sp.csr_matrix((np.concatenate([upper.data, np.zeros(n, upper.dtype)]),
-                                 (np.concatenate([upper.row, diag]),
-                                  np.concatenate([upper.col, diag]))), shape=matrix.shape)
-        else:
-            csr = sp.csr_matrix(matrix)
-        csr.sum_duplicates()
-        csr.sort_indices()
+        csr = self._arrays(matrix, symmetric)
         if self.positive_definite and (not symmetric or np.iscomplexobj(matrix.data)):
             raise SolveError("a real symmetric positive definite matrix was expected")
         a = np.ascontiguousarray(csr.data, dtype=self._dtype)
@@ -301,6 +316,23 @@ class _Pardiso:
             return x.reshape(shape)
 
         return solve
+
+
+def _pardiso_layout(matrix, symmetric):
+    """CSR with sorted indices; for a symmetric matrix its upper triangle with every
+    diagonal entry stored (PARDISO asks for it)."""
+    if symmetric:
+        n = matrix.shape[0]
+        upper = sp.triu(matrix, format="coo")
+        diag = np.arange(n)
+        csr = sp.csr_matrix((np.concatenate([upper.data, np.zeros(n, upper.dtype)]),
+                             (np.concatenate([upper.row, diag]),
+                              np.concatenate([upper.col, diag]))), shape=matrix.shape)
+    else:
+        csr = sp.csr_matrix(matrix, copy=True)
+    csr.sum_duplicates()
+    csr.sort_indices()
+    return csr
 
 
 def _release(lib, pt, iparm, mtype):

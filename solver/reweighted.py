@@ -61,6 +61,7 @@ class ReweightedMatrix:
         self._map = None      # W, rows in the union pattern's entries
         self._data0 = None
         self._nu0 = None
+        self._placed = None   # (indptr, indices, positions) of the last matrix rebased
 
     def _keys(self, rows, cols):
         return cols.astype(np.int64) * self.n + rows  # column-major, as CSC stores entries
@@ -79,21 +80,22 @@ class ReweightedMatrix:
 
     def rebase(self, matrix, nu0):
         """Take ``matrix`` (free unknowns, square sparse) as M at reluctivities ``nu0``
-        (one per saturable element, m/H)."""
-        coo = sp.coo_matrix(matrix)
-        coo.sum_duplicates()
-        if self._pattern is None:
-            self._build_pattern(coo)
-        keys = self._pattern[2]
-        wanted = self._keys(coo.row, coo.col)
-        position = np.searchsorted(keys, wanted)
-        position = np.minimum(position, keys.size - 1)
-        if not np.array_equal(keys[position], wanted):  # an entry outside the pattern
-            self._build_pattern(coo)
-            keys = self._pattern[2]
-            position = np.searchsorted(keys, wanted)
-        data = np.zeros(keys.size, dtype=np.result_type(coo.data, complex))
-        data[position] = coo.data
+        (one per saturable element, m/H). Where its stored entries go is kept for the
+        next matrix of the same pattern (the next field solution of a heating study)."""
+        m = sp.csc_matrix(matrix)
+        kept = self._placed
+        if not (kept is not None and np.array_equal(kept[0], m.indptr)
+                and np.array_equal(kept[1], m.indices)):
+            m.sum_duplicates()
+            rows = m.indices
+            cols = np.repeat(np.arange(self.n), np.diff(m.indptr))
+            wanted = self._keys(rows, cols)
+            if self._pattern is None or not np.isin(wanted, self._pattern[2]).all():
+                self._build_pattern(m)  # an entry outside the pattern: a new pattern
+            kept = (m.indptr.copy(), m.indices.copy(), np.searchsorted(self._pattern[2], wanted))
+            self._placed = kept
+        data = np.zeros(self._pattern[2].size, dtype=np.result_type(m.data, complex))
+        data[kept[2]] = m.data
         self._data0 = data
         self._nu0 = np.array(nu0, float)
 

@@ -194,3 +194,43 @@ def test_positive_definite_pardiso_refuses_complex_matrices():
         pytest.skip("pardiso is not installed")
     with pytest.raises(SolveError, match="real symmetric positive definite"):
         linalg.positive_definite(linalg.pardiso)(_spd().astype(complex))
+
+
+@pytest.mark.parametrize("symmetric", [True, False])
+def test_pardiso_session_reuses_its_layout_for_one_pattern(symmetric):
+    """A PARDISO session fed matrices of one pattern (CSC and CSR, as the iterates of a
+    nonlinear solve are) keeps the map of their entries to PARDISO's arrays; each solve
+    still equals SuperLU's, also after a matrix of another pattern and one whose CSR
+    arrays hold an entry twice (summed, not mapped)."""
+    import scipy.sparse as sp
+
+    if not linalg.pardiso_available():
+        pytest.skip("pardiso is not installed")
+    rng = np.random.default_rng(5)
+    base = _spd(shift=1.0).astype(complex)
+    n = base.shape[0]
+    b = rng.standard_normal(n) + 1j * rng.standard_normal(n)
+    session = linalg.session(linalg.pardiso)
+
+    def check(m):
+        ref = linalg.superlu(sp.csc_matrix(m))(b)
+        assert np.abs(session(m)(b) - ref).max() <= 1e-10 * np.abs(ref).max()
+
+    for step in range(3):
+        m = base.copy()
+        m.data = m.data * (1.0 + 0.5 * rng.random(m.nnz) + 0.1j * step)
+        m = (m + m.T) * 0.5 if symmetric else m
+        check(m.tocsc())
+        check(m.tocsr())
+    check((base + sp.eye(n, k=40) + sp.eye(n, k=-40)).tocsr())  # another pattern
+    # row 0 stores its diagonal twice (half each): not canonical
+    csr = base.tocsr()
+    start, stop = csr.indptr[0], csr.indptr[1]
+    diag = start + int(np.flatnonzero(csr.indices[start:stop] == 0)[0])
+    data = np.insert(csr.data, diag, 0.5 * csr.data[diag])
+    data[diag + 1] *= 0.5
+    indices = np.insert(csr.indices, diag, 0)
+    indptr = csr.indptr + np.r_[0, np.ones(n, dtype=int)]
+    twice = sp.csr_matrix((data, indices, indptr), shape=csr.shape)
+    assert not twice.has_canonical_format
+    check(twice)
