@@ -20,10 +20,11 @@ frozen and the problem *is* linear. The supply is therefore found inside the
 effective iteration: at each iterate, :func:`~.supply.find_drive` finds (by
 superposition, exactly) the drive that meets the power and the caps for the
 frozen reluctivities, and the reluctivities are then updated from the field of
-that drive. At convergence the reluctivities agree with the field to the
-heating field's tolerance (``TOLERANCE``, an energy-weighted relative change of 1e-2)
-and the drive meets the supply to ``find_drive``'s tolerance (1e-9, relative) for them. A power-controlled saturable model costs one factorisation per
-iterate, as a fixed drive does (a choice of this project, instead of an outer
+that drive. At convergence the reluctivities agree with the field to the heating field's
+tolerance (``TOLERANCE``, an energy-weighted relative change of 1e-2) and the drive
+meets the supply to ``find_drive``'s tolerance (1e-9, relative) for them. A
+power-controlled saturable model costs one factorisation per iterate, as a fixed drive
+does (a choice of this project, instead of an outer
 secant iteration on the amplitude around whole effective solutions). Warm start:
 the last field solution's reluctivities, updated once from its field with the
 multipliers of the new temperatures (the field moves little between two field
