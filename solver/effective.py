@@ -173,11 +173,12 @@ def effective_curve(curve) -> EffectiveCurve:
     return _CURVES[key][1]
 
 
-def effective_reluctivity(sat, x, nu_now):
+def effective_reluctivity(sat, x, nu_now, rms=None):
     """Per element of the saturable part ``sat``: the effective reluctivity for the
     amplitude of ``x``, taken from its flux density B_m and from its field strength
-    H_m = nu_now B_m; returns both (m/H)."""
-    b = np.sqrt(2.0) * sat.element_flux_density(x)
+    H_m = nu_now B_m; returns both (m/H). ``rms``: the elements' RMS flux density of ``x``
+    when known (``sat.element_flux_density(x)``)."""
+    b = np.sqrt(2.0) * (sat.element_flux_density(x) if rms is None else rms)
     from_b, from_h = np.empty_like(b), np.empty_like(b)
     for curve, pos in sat.curves:
         m = None if sat.multiplier is None else sat.multiplier[pos]
@@ -187,17 +188,12 @@ def effective_reluctivity(sat, x, nu_now):
     return from_b, from_h
 
 
-def _volumes(sat):
-    """Volume of each saturable element per radian (axisymmetric) or per metre."""
-    return (sat.basis.dx * (np.asarray(sat.basis.global_coordinates())[0]
-                            if sat.axisymmetric else 1.0)).sum(axis=1)
-
-
-def weighted_change(sat, x, nu, new):
+def weighted_change(sat, x, nu, new, rms=None):
     """The energy-weighted relative change of the reluctivity:
     sum |new - nu| B^2 dV / sum nu B^2 dV over the saturable elements (B: the
-    element's RMS flux density, dV its volume per radian or metre)."""
-    weight = sat.element_flux_density(x) ** 2 * _volumes(sat)
+    element's RMS flux density, ``rms`` when known, dV its volume per radian or metre)."""
+    rms = sat.element_flux_density(x) if rms is None else rms
+    weight = rms ** 2 * sat.volumes()
     total = float((nu * weight).sum())
     return float((np.abs(new - nu) * weight).sum() / total) if total > 0 else 0.0
 
@@ -250,9 +246,10 @@ def iterate(linear, sat, nu, what: str, tolerance: float = NU_TOL,
     weight, last = None, None
     for _ in range(max_iterations):
         x = linear(nu)
-        from_b, from_h = effective_reluctivity(sat, x, nu)
+        rms = sat.element_flux_density(x)
+        from_b, from_h = effective_reluctivity(sat, x, nu, rms)
         new = np.sqrt(from_b * from_h)
-        change = weighted_change(sat, x, nu, new)
+        change = weighted_change(sat, x, nu, new, rms)
         history.append(change)
         if change <= tolerance:
             break  # x belongs to nu (kept, so that the solution is consistent)
@@ -266,7 +263,7 @@ def iterate(linear, sat, nu, what: str, tolerance: float = NU_TOL,
         step = alpha * residual
         if accelerate:
             if weight is None:  # each element's share of B^2 dV, fixed for the iteration
-                weight = np.sqrt(sat.element_flux_density(x) ** 2 * _volumes(sat))
+                weight = np.sqrt(rms ** 2 * sat.volumes())
             if change > ANDERSON_RESET * min(history):
                 pairs.clear()
             elif last is not None:

@@ -131,6 +131,7 @@ class FieldSolver:
         self.m_last = (None, None)  # magnetisation multipliers at the last two
         self.memory = []       # secant pairs of the accelerated iteration, kept across solutions
         self.reweighted = None  # the factorised matrix as a function of nu (see .reweighted)
+        self.structure = None   # the reduction's structure (fixed values zero), or False
 
     def _changing(self, problem, heated_elements):
         """Elements whose coefficients may change, the heated and the saturable ones, and
@@ -220,19 +221,28 @@ class FieldSolver:
             self.memory.clear()  # the Curie transition moved: the old secants describe
             # another map
         found = {}
-        reduced = reduce(system)  # S1 and the conditions; S0's blocks follow each iterate
-        if not np.any(reduced.fixed_values):  # the matrix is affine in nu: re-weight it
-            if self.reweighted is None:
-                self.reweighted = ReweightedMatrix(reduced, sat)
+        if self.structure is None:
+            first = reduce(system)
+            # which unknowns are free, glued and fixed never changes; where the fixed ones
+            # are zero the factorised matrix is affine in nu: re-weight it (.reweighted)
+            # and keep the reduction's structure only (its fixed part multiplies zeros)
+            self.structure = (replace(first, S0_ff=None, S1_ff=None)
+                              if not np.any(first.fixed_values) else False)
+            if self.structure:
+                self.reweighted = ReweightedMatrix(first, sat)
+        if self.structure:
+            reduced = self.structure
             omega = 2 * np.pi * self.study.frequency_hz
-            self.reweighted.rebase(reduced.matrix(1.0, 1j * omega),
-                                   system.nu[sat.elements])
+            self.reweighted.rebase_system(system.S0, system.S1, 1j * omega,
+                                          system.nu[sat.elements])
 
             def linear(nu_sat):
                 found["drive"], found["solution"] = self._drive(
                     system, problem, time_s, reduced, self.reweighted.matrix(nu_sat))
                 return found["solution"].x
         else:
+            reduced = reduce(system)  # S1 and the conditions; S0's blocks follow each iterate
+
             def linear(nu_sat):
                 state = with_reluctivity(system, sat, nu_sat, stiffness)
                 found["drive"], found["solution"] = self._drive(

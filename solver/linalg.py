@@ -204,50 +204,52 @@ class _Pardiso:
             raise SolveError(f"PARDISO failed in phase {phase}: {what} (error {err.value})")
 
     def _arrays(self, matrix, symmetric):
-        """``matrix`` as PARDISO takes it (CSR, sorted; for a symmetric matrix the upper
-        triangle with every diagonal entry stored). The map from the stored entries of
-        ``matrix`` to those of the result is kept for the next matrix of the same pattern
-        (the iterates of a nonlinear solve), which then costs one gather."""
+        """``matrix`` as PARDISO takes it: (a, ia, ja) of a sorted CSR (int32 indices; for a
+        symmetric matrix the upper triangle with every diagonal entry stored). The map from
+        the stored entries of ``matrix`` to ``a`` is kept for the next matrix of the same
+        pattern (the iterates of a nonlinear solve), which then costs one gather."""
         m = matrix if matrix.format in ("csr", "csc") else sp.csr_matrix(matrix)
         key = (symmetric, m.format, m.shape)
         kept = self._gather
-        if (kept is not None and kept[0] == key and np.array_equal(kept[1], m.indptr)
+        if not (kept is not None and kept[0] == key and np.array_equal(kept[1], m.indptr)
                 and np.array_equal(kept[2], m.indices)):
-            out = kept[3].copy()
-            take = kept[4]
-            out.data = np.where(take >= 0, m.data[take], 0).astype(m.dtype, copy=False)
-            return out
-        if not m.has_canonical_format:  # duplicate entries: summed, nothing kept
-            return _pardiso_layout(m, symmetric)
-        probe = m.copy()
-        probe.data = np.arange(1, m.nnz + 1, dtype=float)  # where each entry goes
-        out = _pardiso_layout(probe, symmetric)
-        take = np.rint(out.data).astype(np.int64) - 1  # -1: a diagonal entry added as 0
-        self._gather = (key, m.indptr.copy(), m.indices.copy(), out, take)
-        out = out.copy()
-        out.data = np.where(take >= 0, m.data[take], 0).astype(m.dtype, copy=False)
-        return out
+            if not m.has_canonical_format:  # duplicate entries: summed, nothing kept
+                out = _pardiso_layout(m, symmetric)
+                return (out.data, out.indptr.astype(np.int32), out.indices.astype(np.int32))
+            probe = m.copy()
+            probe.data = np.arange(1, m.nnz + 1, dtype=float)  # where each entry goes
+            out = _pardiso_layout(probe, symmetric)
+            take = np.rint(out.data).astype(np.int64) - 1  # -1: a diagonal entry added as 0
+            where = np.flatnonzero(take >= 0)
+            kept = (key, m.indptr.copy(), m.indices.copy(), out.data.size, where, take[where],
+                    np.ascontiguousarray(out.indptr, dtype=np.int32),
+                    np.ascontiguousarray(out.indices, dtype=np.int32))
+            self._gather = kept
+        size, where, source, ia, ja = kept[3:]
+        a = np.zeros(size, dtype=m.dtype)
+        a[where] = m.data[source]
+        return a, ia, ja
 
     def factorize(self, matrix, mnum: int = 1):
         """Factorise ``matrix`` as factorisation number ``mnum`` (1..maxfct); a new sparsity
         pattern starts a new analysis, which ends every earlier factorisation."""
         symmetric = is_symmetric(matrix)
         mtype = 6 if symmetric else 13
-        csr = self._arrays(matrix, symmetric)
+        a, ia, ja = self._arrays(matrix, symmetric)
         if self.positive_definite and (not symmetric or np.iscomplexobj(matrix.data)):
             raise SolveError("a real symmetric positive definite matrix was expected")
-        a = np.ascontiguousarray(csr.data, dtype=self._dtype)
-        ia = np.ascontiguousarray(csr.indptr, dtype=np.int32)
-        ja = np.ascontiguousarray(csr.indices, dtype=np.int32)
+        a = np.ascontiguousarray(a, dtype=self._dtype)
+        n = matrix.shape[0]
         if self.positive_definite:
             mtype = 2
         pattern = (mtype, ia, ja)
-        same = (self.pattern is not None and self.mtype == mtype and self.n == csr.shape[0]
-                and np.array_equal(self.pattern[1], ia) and np.array_equal(self.pattern[2], ja))
+        same = (self.pattern is not None and self.mtype == mtype and self.n == n
+                and (self.pattern[1] is ia or np.array_equal(self.pattern[1], ia))
+                and (self.pattern[2] is ja or np.array_equal(self.pattern[2], ja)))
         if not same:
             self._finalizer()  # release a previous analysis
             self.pt[:] = 0
-            self.mtype, self.n = mtype, csr.shape[0]
+            self.mtype, self.n = mtype, n
             self._set_parameters(symmetric)
             self._finalizer = weakref.finalize(self, _release, self.lib, self.pt, self.iparm,
                                                mtype)

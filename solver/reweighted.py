@@ -51,52 +51,83 @@ class ReweightedMatrix:
         element = np.tile(np.arange(n_el), coo.data.size // n_el)
         free = np.full(red.size, -1, dtype=np.int64)
         free[red.free] = np.arange(red.free.size)
-        rows = free[red.renumber[coo.indices[0]]]
-        cols = free[red.renumber[coo.indices[1]]]
+        self._free_of = free[red.renumber]  # full numbering -> free unknown, or -1
+        rows = self._free_of[coo.indices[0]]
+        cols = self._free_of[coo.indices[1]]
         keep = (rows >= 0) & (cols >= 0)  # entries on fixed unknowns are removed with them
         self.n = red.free.size
-        self._rows, self._cols = rows[keep], cols[keep]
+        self.n_elements = n_el
         self._element, self._values = element[keep], coo.data.ravel()[keep]
+        self._element_keys = self._keys(rows[keep], cols[keep])
         self._pattern = None  # (indptr, indices, keys) of the union pattern
         self._map = None      # W, rows in the union pattern's entries
         self._data0 = None
         self._nu0 = None
-        self._placed = None   # (indptr, indices, positions) of the last matrix rebased
+        self._placed = {}     # input name -> (indptr, indices, kept entries, positions)
 
     def _keys(self, rows, cols):
         return cols.astype(np.int64) * self.n + rows  # column-major, as CSC stores entries
 
-    def _build_pattern(self, matrix):
-        """The union of ``matrix``'s pattern and the elements' entries; W on it."""
-        coo = matrix.tocoo()
-        keys = np.union1d(self._keys(coo.row, coo.col), self._keys(self._rows, self._cols))
+    def _grow(self, keys):
+        """Make the pattern hold ``keys`` too (with the elements' entries); True if it grew
+        (every position found earlier is then void)."""
+        if self._pattern is not None and np.isin(keys, self._pattern[2]).all():
+            return False
+        old = self._element_keys if self._pattern is None else self._pattern[2]
+        keys = np.union1d(np.union1d(old, keys), self._element_keys)
         cols, rows = np.divmod(keys, self.n)
         indptr = np.zeros(self.n + 1, dtype=np.int64)
         np.add.at(indptr, cols + 1, 1)
         self._pattern = (np.cumsum(indptr), rows.astype(np.int32), keys)
-        position = np.searchsorted(keys, self._keys(self._rows, self._cols))
+        position = np.searchsorted(keys, self._element_keys)
         self._map = sp.csr_matrix((self._values, (position, self._element)),
-                                  shape=(keys.size, int(self._element.max()) + 1))
+                                  shape=(keys.size, self.n_elements))
+        self._placed.clear()
+        return True
+
+    def _place(self, name, matrix, numbering):
+        """The stored entries of ``matrix`` summed into the pattern (a data array).
+        ``numbering``: "free" (already on the free unknowns) or "full" (the system's own
+        numbering: glued unknowns are summed, fixed ones dropped). Where the entries go is
+        kept for the next matrix of the same pattern. Returns (data, grew)."""
+        m = matrix.tocsr() if matrix.format != "csr" else matrix
+        kept = self._placed.get(name)
+        grew = False
+        if not (kept is not None and np.array_equal(kept[0], m.indptr)
+                and np.array_equal(kept[1], m.indices)):
+            rows = np.repeat(np.arange(m.shape[0]), np.diff(m.indptr))
+            cols = m.indices
+            if numbering == "full":
+                rows, cols = self._free_of[rows], self._free_of[cols]
+            keep = np.flatnonzero((rows >= 0) & (cols >= 0))
+            wanted = self._keys(rows[keep], cols[keep])
+            grew = self._grow(wanted)
+            kept = (m.indptr.copy(), m.indices.copy(), keep,
+                    np.searchsorted(self._pattern[2], wanted))
+            self._placed[name] = kept
+        values = m.data[kept[2]]
+        size = self._pattern[2].size
+        data = np.bincount(kept[3], weights=values.real, minlength=size)
+        if np.iscomplexobj(values):
+            data = data + 1j * np.bincount(kept[3], weights=values.imag, minlength=size)
+        return data, grew
 
     def rebase(self, matrix, nu0):
         """Take ``matrix`` (free unknowns, square sparse) as M at reluctivities ``nu0``
-        (one per saturable element, m/H). Where its stored entries go is kept for the
-        next matrix of the same pattern (the next field solution of a heating study)."""
-        m = sp.csc_matrix(matrix)
-        kept = self._placed
-        if not (kept is not None and np.array_equal(kept[0], m.indptr)
-                and np.array_equal(kept[1], m.indices)):
-            m.sum_duplicates()
-            rows = m.indices
-            cols = np.repeat(np.arange(self.n), np.diff(m.indptr))
-            wanted = self._keys(rows, cols)
-            if self._pattern is None or not np.isin(wanted, self._pattern[2]).all():
-                self._build_pattern(m)  # an entry outside the pattern: a new pattern
-            kept = (m.indptr.copy(), m.indices.copy(), np.searchsorted(self._pattern[2], wanted))
-            self._placed = kept
-        data = np.zeros(self._pattern[2].size, dtype=np.result_type(m.data, complex))
-        data[kept[2]] = m.data
-        self._data0 = data
+        (one per saturable element, m/H)."""
+        data, _ = self._place("matrix", matrix, "free")
+        self._data0 = data.astype(complex)
+        self._nu0 = np.array(nu0, float)
+
+    def rebase_system(self, s0, s1, a1: complex, nu0):
+        """Take M = S0 + a1 S1 from the system's own matrices (full numbering; the same
+        reduction as at construction) at reluctivities ``nu0``: no reduction is formed."""
+        for _ in range(2):  # a second pass if the pattern grew under the first placement
+            d0, grew0 = self._place("S0", s0, "full")
+            d1, grew1 = self._place("S1", s1, "full")
+            if not grew1:
+                break
+        self._data0 = d0 + a1 * d1
         self._nu0 = np.array(nu0, float)
 
     def matrix(self, nu) -> sp.csc_matrix:

@@ -93,6 +93,7 @@ class Saturable:
     curves: list = field(default_factory=list)  # (unscaled curve, positions), one per region
     multiplier: np.ndarray | None = None  # m per saturable element (1 when None)
     _curl: tuple | None = None  # see curl_operator
+    _volumes: np.ndarray | None = None  # see volumes
 
     def __post_init__(self):
         self.residual_form, self.tangent_form, self.stiffness_form = forms(self.axisymmetric)
@@ -170,6 +171,14 @@ class Saturable:
             self._curl = tuple(sp.csr_matrix((np.concatenate(v), (r, c)), shape=shape)
                                for v in parts[2:])
         return self._curl
+
+    def volumes(self):
+        """Volume of each saturable element per radian (axisymmetric) or per metre (m^3),
+        computed once."""
+        if self._volumes is None:
+            r = np.asarray(self.basis.global_coordinates())[0] if self.axisymmetric else 1.0
+            self._volumes = (self.basis.dx * r).sum(axis=1)
+        return self._volumes
 
     def element_flux_density(self, x):
         """Per saturable element: the RMS of |B| over the element (area mean of |B|^2), T.

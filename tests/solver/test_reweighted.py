@@ -4,7 +4,8 @@ Internal check of :mod:`whorl.solver.reweighted` (no outside source is involved:
 sides compute the same matrix, one by a sparse product on a fixed pattern, one by
 assembly, reduction and conversion): for random reluctivities of the saturable elements
 the two agree to round-off, the pattern does not change between calls, and a rebase on a
-new conductivity (a heating study's next field solution) is followed as well.
+new conductivity (a heating study's next field solution), from the reduced matrix or from
+the system's own matrices, is followed as well.
 """
 
 import numpy as np
@@ -52,6 +53,12 @@ def test_reweighted_equals_assembled():
     expected = assembled(system, sat, nu) + 1j * OMEGA * red.S1_ff
     assert np.abs(rew.matrix(nu) - expected).max() <= 1e-13 * np.abs(expected).max()
 
+    # the base from the system's own (unreduced) matrices, twice: the placement is kept
+    for factor in (1.0, 2.0):
+        rew.rebase_system(system.S0, factor * system.S1, 1j * OMEGA, system.nu[sat.elements])
+        expected = assembled(system, sat, nu) + (factor - 1) * 1j * OMEGA * red.S1_ff
+        assert np.abs(rew.matrix(nu) - expected).max() <= 1e-13 * np.abs(expected).max()
+
 
 def test_nonzero_fixed_values_refused():
     system = assemble(problem_with(STEEL, 200.0))
@@ -61,3 +68,34 @@ def test_nonzero_fixed_values_refused():
         pytest.skip("the model has no fixed unknowns")
     with pytest.raises(ValueError, match="fixed unknowns"):
         ReweightedMatrix(red, saturable_part(system))
+
+
+def test_reweighted_with_glued_unknowns(tmp_path):
+    """The same with an open boundary (Kelvin transformation: unknowns glued, P^T S P):
+    the bus-bar cover plate demo with its plate on a B-H curve."""
+    from pathlib import Path
+
+    from whorl.cases import model
+    from whorl.cases.loader import load_case
+    from whorl.meshes.build import build_mesh
+
+    demo = Path(__file__).resolve().parents[2] / "cases" / "examples" / "busbar-cover-plate.toml"
+    text = demo.read_text().replace('material = "carbon-steel"',
+                                    'material = "low-carbon-steel-bh"')
+    case_file = tmp_path / "plate.toml"
+    case_file.write_text(text)
+    case = load_case(case_file)
+    problem = model.problem(case, build_mesh(model.sized_geometry(case)))
+    system = assemble(problem)
+    sat = saturable_part(system)
+    red = reduce(system)
+    assert red.P is not None and not np.any(red.fixed_values)
+    rew = ReweightedMatrix(red, sat)
+    nu = system.nu[sat.elements] * 10 ** np.random.default_rng(4).uniform(0, 2, sat.elements.size)
+    for rebase in ("reduced", "system"):
+        if rebase == "reduced":
+            rew.rebase(red.matrix(1.0, 1j * OMEGA), system.nu[sat.elements])
+        else:
+            rew.rebase_system(system.S0, system.S1, 1j * OMEGA, system.nu[sat.elements])
+        plain = assembled(system, sat, nu)
+        assert np.abs(rew.matrix(nu) - plain).max() <= 1e-13 * np.abs(plain).max()
