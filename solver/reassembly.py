@@ -15,6 +15,7 @@ from __future__ import annotations
 from dataclasses import replace
 
 import numpy as np
+import scipy.sparse as sp
 
 from whorl.solver.coefficients import eddy_conductivity, reluctivity
 from whorl.solver.elementwise import ElementwiseMatrix
@@ -46,11 +47,13 @@ class Reassembler:
         form = self.base.form
         self._stiffness = ElementwiseMatrix(form.stiffness, basis, local, n, nu=ones)
         self._mass = ElementwiseMatrix(form.conductor_mass, basis, local, n, sigma=ones)
+        self._s0 = _FixedSum(self.base.S0, self._stiffness)
+        self._s1 = _FixedSum(self.base.S1, self._mass)
 
     def stiffness(self, nu):
         """S0 with reluctivity ``nu`` (per element of the mesh, m/H) on :attr:`elements`."""
         el = self.elements
-        return (self.base.S0 + self._stiffness.matrix(nu[el] - self.base.nu[el])).tocsr()
+        return self._s0(nu[el] - self.base.nu[el])
 
     def system(self, problem, nu=None):
         """The system of ``problem`` (the same mesh and sources; new temperatures).
@@ -61,8 +64,45 @@ class Reassembler:
         base, el = self.base, self.elements
         nu = reluctivity(problem) if nu is None else nu
         sigma = eddy_conductivity(problem)
-        s1 = base.S1 + self._mass.matrix(sigma[el] - base.sigma[el])
+        s1 = self._s1(sigma[el] - base.sigma[el])
         nu_q = np.array(base.nu_q, copy=True)
         nu_q[el] = nu[el][:, None]
         return replace(base, problem=problem, nu=nu, sigma=sigma, S0=self.stiffness(nu),
-                       S1=s1.tocsr(), nu_q=nu_q)
+                       S1=s1, nu_q=nu_q)
+
+
+class _FixedSum:
+    """``base + part.matrix(c)`` on the union of the two patterns, every entry kept (a
+    sparse sum drops exact zeros, so its pattern would depend on the values, and whatever
+    keeps work per pattern downstream, a factorisation's analysis or a placement, would
+    be redone)."""
+
+    def __init__(self, base, part):
+        base = sp.csr_matrix(base)
+        base.sum_duplicates()
+        ones = part.with_values(np.ones(part.nnz))
+        base_ones = sp.csr_matrix((np.ones(base.nnz), base.indices, base.indptr),
+                                  shape=base.shape)
+        union = (base_ones + ones).tocsr()  # every entry of either (>= 1: none dropped)
+        union.sum_duplicates()
+        union.sort_indices()
+        n = union.shape[1]
+
+        def keys(m):
+            rows = np.repeat(np.arange(m.shape[0], dtype=np.int64), np.diff(m.indptr))
+            return rows * n + m.indices
+
+        union_keys = keys(union)
+        self._base_at = np.searchsorted(union_keys, keys(base))
+        self._part_at = np.searchsorted(union_keys, keys(ones))
+        self._base_data = base.data
+        self._part = part
+        self._indptr, self._indices, self._shape = union.indptr, union.indices, union.shape
+
+    def __call__(self, coefficient) -> sp.csr_matrix:
+        data = np.zeros(self._indices.size, dtype=self._base_data.dtype)
+        data[self._base_at] = self._base_data
+        data[self._part_at] += self._part.values(coefficient)
+        out = sp.csr_matrix((data, self._indices, self._indptr), shape=self._shape)
+        out.has_sorted_indices = True
+        return out

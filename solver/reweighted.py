@@ -71,8 +71,11 @@ class ReweightedMatrix:
     def _grow(self, keys):
         """Make the pattern hold ``keys`` too (with the elements' entries); True if it grew
         (every position found earlier is then void)."""
-        if self._pattern is not None and np.isin(keys, self._pattern[2]).all():
-            return False
+        if self._pattern is not None:
+            have = self._pattern[2]
+            at = np.minimum(np.searchsorted(have, keys), have.size - 1)
+            if np.array_equal(have[at], keys):
+                return False
         old = self._element_keys if self._pattern is None else self._pattern[2]
         keys = np.union1d(np.union1d(old, keys), self._element_keys)
         cols, rows = np.divmod(keys, self.n)

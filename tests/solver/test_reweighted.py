@@ -99,3 +99,24 @@ def test_reweighted_with_glued_unknowns(tmp_path):
             rew.rebase_system(system.S0, system.S1, 1j * OMEGA, system.nu[sat.elements])
         plain = assembled(system, sat, nu)
         assert np.abs(rew.matrix(nu) - plain).max() <= 1e-13 * np.abs(plain).max()
+
+
+def test_reassembled_matrices_keep_their_pattern():
+    """A re-assembled S0 or S1 (:mod:`whorl.solver.reassembly`) equals base + change and
+    keeps one pattern whatever the change, even one that cancels entries exactly (a
+    sparse sum would drop them, and the pattern would follow the values)."""
+    from whorl.solver.reassembly import Reassembler
+
+    problem = problem_with(STEEL, 200.0)
+    elements = problem.mesh.elements("bar")
+    rea = Reassembler(problem, elements)
+    base = rea.base
+    patterns = set()
+    for nu in (base.nu * 2.0, np.where(np.isin(np.arange(base.nu.size), elements), 0.0,
+                                       base.nu)):  # the second removes the bar's stiffness
+        s0 = rea.stiffness(nu)
+        change = rea._stiffness.matrix(nu[elements] - base.nu[elements])
+        expected = base.S0 + change
+        assert abs(s0 - expected).max() <= 1e-14 * abs(base.S0).max()
+        patterns.add((s0.indptr.tobytes(), s0.indices.tobytes()))
+    assert len(patterns) == 1
