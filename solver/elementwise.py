@@ -20,6 +20,13 @@ def _coefficients(coefficient, nelems: int) -> np.ndarray:
     return np.broadcast_to(np.asarray(coefficient, dtype=float), (nelems,))
 
 
+def entry_keys(indptr, indices, columns: int) -> np.ndarray:
+    """row * columns + column of every stored entry of a CSR pattern (increasing when its
+    indices are sorted): a pattern's entries as one sorted array, to search another's in."""
+    rows = np.repeat(np.arange(indptr.size - 1, dtype=np.int64), np.diff(indptr))
+    return rows * columns + indices
+
+
 class ElementwiseMatrix:
     """sum_e c_e A_e for a bilinear form's element (or facet) matrices A_e.
 
@@ -88,10 +95,8 @@ class ElementwiseMatrix:
         an entry outside this pattern."""
         if other.size != self.size:
             raise ValueError("the two matrices differ in size")
-        rows = np.repeat(np.arange(self.size), np.diff(self._indptr))
-        mine = rows.astype(np.int64) * self.size + self._indices
-        rows = np.repeat(np.arange(other.size), np.diff(other._indptr))
-        theirs = rows.astype(np.int64) * self.size + other._indices
+        mine = entry_keys(self._indptr, self._indices, self.size)
+        theirs = entry_keys(other._indptr, other._indices, self.size)
         where = np.searchsorted(mine, theirs)
         if where.size and (where.max() >= mine.size or np.any(mine[where] != theirs)):
             raise ValueError("an entry lies outside this matrix's pattern")

@@ -24,8 +24,8 @@ that drive. At convergence the reluctivities agree with the field to the heating
 tolerance (``TOLERANCE``, an energy-weighted relative change of 1e-2) and the drive
 meets the supply to ``find_drive``'s tolerance (1e-9, relative) for them. A
 power-controlled saturable model costs one factorisation per iterate, as a fixed drive
-does (a choice of this project, instead of an outer
-secant iteration on the amplitude around whole effective solutions). Warm start:
+does (a choice of this project, instead of an outer secant iteration on the amplitude
+around whole effective solutions). Warm start:
 the last field solution's reluctivities, updated once from its field with the
 multipliers of the new temperatures (the field moves little between two field
 solutions, the permeability much only where an element crosses the Curie point),

@@ -18,7 +18,7 @@ import numpy as np
 import scipy.sparse as sp
 
 from whorl.solver.coefficients import eddy_conductivity, reluctivity
-from whorl.solver.elementwise import ElementwiseMatrix
+from whorl.solver.elementwise import ElementwiseMatrix, entry_keys
 from whorl.solver.system import assemble
 
 
@@ -87,14 +87,9 @@ class _FixedSum:
         union.sum_duplicates()
         union.sort_indices()
         n = union.shape[1]
-
-        def keys(m):
-            rows = np.repeat(np.arange(m.shape[0], dtype=np.int64), np.diff(m.indptr))
-            return rows * n + m.indices
-
-        union_keys = keys(union)
-        self._base_at = np.searchsorted(union_keys, keys(base))
-        self._part_at = np.searchsorted(union_keys, keys(ones))
+        union_keys = entry_keys(union.indptr, union.indices, n)
+        self._base_at = np.searchsorted(union_keys, entry_keys(base.indptr, base.indices, n))
+        self._part_at = np.searchsorted(union_keys, entry_keys(ones.indptr, ones.indices, n))
         self._base_data = base.data
         self._part = part
         self._indptr, self._indices, self._shape = union.indptr, union.indices, union.shape
