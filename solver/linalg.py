@@ -207,7 +207,9 @@ class _Pardiso:
         """``matrix`` as PARDISO takes it: (a, ia, ja) of a sorted CSR (int32 indices; for a
         symmetric matrix the upper triangle with every diagonal entry stored). The map from
         the stored entries of ``matrix`` to ``a`` is kept for the next matrix of the same
-        pattern (the iterates of a nonlinear solve), which then costs one gather."""
+        pattern (the iterates of a nonlinear solve), which then costs one gather, or a copy
+        where the matrix is laid out so already (an unsymmetric sorted CSR, as
+        :class:`~whorl.solver.reweighted.ReweightedMatrix` gives)."""
         m = matrix if matrix.format in ("csr", "csc") else sp.csr_matrix(matrix)
         key = (symmetric, m.format, m.shape)
         kept = self._gather
@@ -221,11 +223,17 @@ class _Pardiso:
             out = _pardiso_layout(probe, symmetric)
             take = np.rint(out.data).astype(np.int64) - 1  # -1: a diagonal entry added as 0
             where = np.flatnonzero(take >= 0)
-            kept = (key, m.indptr.copy(), m.indices.copy(), out.data.size, where, take[where],
+            source = take[where]
+            if m.format == "csr" and where.size == out.data.size == m.nnz and np.array_equal(
+                    source, np.arange(m.nnz)):
+                where = source = None  # sorted canonical CSR, nothing added: as it is
+            kept = (key, m.indptr.copy(), m.indices.copy(), out.data.size, where, source,
                     np.ascontiguousarray(out.indptr, dtype=np.int32),
                     np.ascontiguousarray(out.indices, dtype=np.int32))
             self._gather = kept
         size, where, source, ia, ja = kept[3:]
+        if source is None:  # the matrix is laid out as PARDISO takes it: no gather
+            return m.data.copy(), ia, ja
         a = np.zeros(size, dtype=m.dtype)
         a[where] = m.data[source]
         return a, ia, ja

@@ -66,7 +66,7 @@ class ReweightedMatrix:
         self._placed = {}     # input name -> (indptr, indices, kept entries, positions)
 
     def _keys(self, rows, cols):
-        return cols.astype(np.int64) * self.n + rows  # column-major, as CSC stores entries
+        return rows.astype(np.int64) * self.n + cols  # row-major, as CSR stores entries
 
     def _grow(self, keys):
         """Make the pattern hold ``keys`` too (with the elements' entries); True if it grew
@@ -78,10 +78,10 @@ class ReweightedMatrix:
                 return False
         old = self._element_keys if self._pattern is None else self._pattern[2]
         keys = np.union1d(np.union1d(old, keys), self._element_keys)
-        cols, rows = np.divmod(keys, self.n)
+        rows, cols = np.divmod(keys, self.n)
         indptr = np.zeros(self.n + 1, dtype=np.int64)
-        np.add.at(indptr, cols + 1, 1)
-        self._pattern = (np.cumsum(indptr), rows.astype(np.int32), keys)
+        np.add.at(indptr, rows + 1, 1)
+        self._pattern = (np.cumsum(indptr), cols.astype(np.int32), keys)
         position = np.searchsorted(keys, self._element_keys)
         self._map = sp.csr_matrix((self._values, (position, self._element)),
                                   shape=(keys.size, self.n_elements))
@@ -133,8 +133,9 @@ class ReweightedMatrix:
         self._data0 = d0 + a1 * d1
         self._nu0 = np.array(nu0, float)
 
-    def matrix(self, nu) -> sp.csc_matrix:
-        """M at reluctivities ``nu`` (one per saturable element, m/H), CSC."""
+    def matrix(self, nu) -> sp.csr_matrix:
+        """M at reluctivities ``nu`` (one per saturable element, m/H): a sorted CSR, the
+        layout a direct solver takes for an unsymmetric matrix as it is."""
         data = self._data0 + self._map @ (np.asarray(nu, float) - self._nu0)
         indptr, indices, _ = self._pattern
-        return sp.csc_matrix((data, indices, indptr), shape=(self.n, self.n))
+        return sp.csr_matrix((data, indices, indptr), shape=(self.n, self.n))

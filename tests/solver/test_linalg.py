@@ -234,3 +234,28 @@ def test_pardiso_session_reuses_its_layout_for_one_pattern(symmetric):
     twice = sp.csr_matrix((data, indices, indptr), shape=csr.shape)
     assert not twice.has_canonical_format
     check(twice)
+
+
+def test_pardiso_takes_a_sorted_unsymmetric_csr_as_it_is():
+    """An unsymmetric matrix given as a sorted canonical CSR (as the re-weighted field
+    matrix of a nonlinear iteration is) is PARDISO's layout already: its entries are
+    copied, not gathered, and the solution still equals SuperLU's; a CSC of the same
+    matrix is gathered (its entries are in another order)."""
+    import scipy.sparse as sp
+
+    if not linalg.pardiso_available():
+        pytest.skip("pardiso is not installed")
+    rng = np.random.default_rng(11)
+    m = _spd(shift=1.0).astype(complex).tocsr()
+    m = m + sp.csr_matrix(([0.3j], ([0], [m.shape[0] - 1])), shape=m.shape)  # unsymmetric
+    m.sort_indices()
+    b = rng.standard_normal(m.shape[0]) + 1j * rng.standard_normal(m.shape[0])
+    ref = linalg.superlu(sp.csc_matrix(m))(b)
+    solver = linalg._Pardiso()
+    for matrix, as_it_is in ((m, True), (m.tocsc(), False)):
+        a, _, _ = solver._arrays(matrix, symmetric=False)
+        assert (solver._gather[5] is None) is as_it_is
+        assert np.array_equal(np.sort_complex(a), np.sort_complex(matrix.data))
+        assert np.abs(solver.factorize(matrix)(b) - ref).max() <= 1e-10 * np.abs(ref).max()
+    a, _, _ = solver._arrays(m, symmetric=False)
+    assert a is not m.data  # a copy: PARDISO's refinement must not see later changes
