@@ -90,6 +90,7 @@ from whorl.solver.errors import SolveError
 from whorl.solver.reduction import reduce
 from whorl.solver.solution import ReducedSolution, ReducedSpace, Solution
 from whorl.solver.sources import Massive, Stranded, current_is_unknown
+from whorl.solver.symmetrise import symmetrising
 
 log = logging.getLogger(__name__)
 
@@ -535,6 +536,7 @@ def reduced_sweep(system, frequencies, backend="auto", tolerance=TOLERANCE, prog
     # no iterative refinement (it triples a solve's cost; residuals stay near 1e-12 and
     # every solve's residual is checked)
     factorize = linalg.family(factorize, MAX_POINTS + 1, refine=False)
+    factorize = symmetrising(factorize, system.size - system.n_field)  # .symmetrise
     sweep = _Sweep(system, frequencies, factorize, tolerance, progress)
     # The dense work is on thin matrices: threaded BLAS only loses on them, and badly so
     # when other processes share the cores.

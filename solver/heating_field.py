@@ -67,6 +67,7 @@ from whorl.solver.reweighted import ReweightedMatrix
 from whorl.solver.saturable import base_matrix, has_saturable, saturable_part
 from whorl.solver.solution import Solution
 from whorl.solver.supply import find_drive, with_drive
+from whorl.solver.symmetrise import symmetrising
 from whorl.solver.system import assemble
 
 ACCELERATE = True
@@ -161,7 +162,8 @@ class FieldSolver:
         matrix on the free unknowns, when known already."""
         red = reduce(system) if red is None else red
         omega = 2 * np.pi * self.study.frequency_hz
-        solve = self.factorize(red.matrix(1.0, 1j * omega) if matrix is None else matrix)
+        factorize = symmetrising(self.factorize, system.size - system.n_field)  # .symmetrise
+        solve = factorize(red.matrix(1.0, 1j * omega) if matrix is None else matrix)
         linear = not np.any(red.fixed_values)  # superposition of one solution per source
         unit = {}
 
