@@ -90,7 +90,7 @@ from whorl.solver.errors import SolveError
 from whorl.solver.reduction import reduce
 from whorl.solver.solution import ReducedSolution, ReducedSpace, Solution
 from whorl.solver.sources import Massive, Stranded, current_is_unknown
-from whorl.solver.symmetrise import symmetrising
+from whorl.solver.symmetrise import circuit_scaling
 
 log = logging.getLogger(__name__)
 
@@ -535,8 +535,8 @@ def reduced_sweep(system, frequencies, backend="auto", tolerance=TOLERANCE, prog
     # every expansion frequency's factorisation stays valid: one analysis for them all;
     # no iterative refinement (it triples a solve's cost; residuals stay near 1e-12 and
     # every solve's residual is checked)
-    factorize = linalg.family(factorize, MAX_POINTS + 1, refine=False)
-    factorize = symmetrising(factorize, system.size - system.n_field)  # .symmetrise
+    factorize = circuit_scaling(factorize, system, linalg.family(factorize, MAX_POINTS + 1,
+                                                                  refine=False))
     sweep = _Sweep(system, frequencies, factorize, tolerance, progress)
     # The dense work is on thin matrices: threaded BLAS only loses on them, and badly so
     # when other processes share the cores.

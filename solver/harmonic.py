@@ -14,7 +14,7 @@ from whorl.solver.newton import NonlinearSystem
 from whorl.solver.reduction import reduce
 from whorl.solver.saturable import has_saturable
 from whorl.solver.solution import Solution
-from whorl.solver.symmetrise import symmetrising
+from whorl.solver.symmetrise import circuit_scaling
 from whorl.solver.system import assemble
 
 log = logging.getLogger(__name__)
@@ -41,9 +41,9 @@ def solve_system(system, frequencies, backend: str = "auto", progress=None,
         if why is None:
             return _solve_reduced(system, frequencies, backend, progress, tolerance)
         log.info("reduced frequency sweep not used: %s; every frequency is solved in full", why)
-    factorize = linalg.session(factorize)  # keeps the symbolic analysis across frequencies
-    # circuit rows scaled to a symmetric matrix where they can be (.symmetrise)
-    factorize = symmetrising(factorize, system.size - system.n_field)
+    # the session keeps the symbolic analysis across frequencies; circuit rows are scaled
+    # to a symmetric matrix where the backend gains by it (.symmetrise)
+    factorize = circuit_scaling(factorize, system, linalg.session(factorize))
     if has_saturable(system.problem):
         return _solve_saturable(system, frequencies, name, factorize, progress)
     red = reduce(system)

@@ -67,7 +67,7 @@ from whorl.solver.reweighted import ReweightedMatrix
 from whorl.solver.saturable import base_matrix, has_saturable, saturable_part
 from whorl.solver.solution import Solution
 from whorl.solver.supply import find_drive, with_drive
-from whorl.solver.symmetrise import symmetrising
+from whorl.solver.symmetrise import circuit_scaling
 from whorl.solver.system import assemble
 
 ACCELERATE = True
@@ -119,8 +119,8 @@ class FieldSolver:
         self.problem, self.study = problem, study
         self.terminals, self.loss_density, self.region_losses = (terminals, loss_density,
                                                                  region_losses)
-        self.backend_name, factorize = linalg.choose(backend)
-        self.factorize = linalg.session(factorize)
+        self.backend_name, self.backend = linalg.choose(backend)
+        self.factorize = linalg.session(self.backend)
         self.previous = None
         self.reassembler = None
         self.saturable = has_saturable(problem)
@@ -162,7 +162,7 @@ class FieldSolver:
         matrix on the free unknowns, when known already."""
         red = reduce(system) if red is None else red
         omega = 2 * np.pi * self.study.frequency_hz
-        factorize = symmetrising(self.factorize, system.size - system.n_field)  # .symmetrise
+        factorize = circuit_scaling(self.backend, system, self.factorize)  # .symmetrise
         solve = factorize(red.matrix(1.0, 1j * omega) if matrix is None else matrix)
         linear = not np.any(red.fixed_values)  # superposition of one solution per source
         unit = {}

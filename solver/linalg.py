@@ -379,6 +379,7 @@ def _pardiso_family(count, refine=True):
 
 
 pardiso.family = _pardiso_family
+pardiso.exploits_symmetry = True  # L D L^T for complex symmetric matrices (.symmetrise)
 pardiso.positive_definite = lambda: _Pardiso(positive_definite=True).factorize
 
 

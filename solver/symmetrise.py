@@ -96,6 +96,16 @@ class _ScaledSolve:
         return getattr(self._solve, name)
 
 
+def circuit_scaling(backend, system, factorize):
+    """``factorize`` wrapped by :func:`symmetrising` for ``system``'s circuit rows where
+    ``backend`` (a registered backend function) gains by symmetry
+    (``backend.exploits_symmetry``: PARDISO's L D L^T); as it is otherwise (SuperLU's LU
+    and GMRES gain nothing, and GMRES's residual would weigh the scaled rows less)."""
+    if not getattr(backend, "exploits_symmetry", False):
+        return factorize
+    return symmetrising(factorize, system.size - system.n_field)
+
+
 def symmetrising(factorize, tail: int):
     """``factorize`` (matrix, ... -> solve) for matrices whose last ``tail`` rows are
     circuit rows: each matrix that a row scaling makes symmetric goes to it scaled, and

@@ -137,3 +137,15 @@ def test_no_scaling_where_the_circuit_rows_cannot_match(case):
     b = np.ones(m.shape[0], complex)
     plain = linalg.superlu(m)(b)
     assert np.array_equal(symmetrising(linalg.superlu, tail)(m)(b), plain)
+
+
+def test_only_a_backend_that_gains_by_symmetry_gets_the_scaling(case):
+    """SuperLU's LU and GMRES gain nothing from symmetry (and GMRES's residual would weigh
+    the scaled rows less): their factorize is left as it is; PARDISO's is wrapped."""
+    from whorl.solver.iterative import iterative
+    from whorl.solver.symmetrise import circuit_scaling
+
+    system, _, _ = case
+    for backend in (linalg.superlu, iterative):
+        assert circuit_scaling(backend, system, backend) is backend
+    assert circuit_scaling(linalg.pardiso, system, linalg.pardiso) is not linalg.pardiso
