@@ -9,6 +9,8 @@ round-off, and where no scaling can make the matrix symmetric (0 Hz: the branch 
 have no field entries) nothing is scaled.
 """
 
+from dataclasses import replace
+
 import numpy as np
 import pytest
 import scipy.sparse as sp
@@ -57,7 +59,16 @@ def axisymmetric_turns_and_winding():
                    order=2)
 
 
+def planar_massive_without_resistance():
+    """The bar pair driven straight by its voltage: the driven row's diagonal is zero, so
+    the symmetric factorisation must pivot (Bunch-Kaufman)."""
+    problem = planar_massive_with_capacitor()
+    source = replace(problem.sources[0], resistance=0.0, capacitance=None)
+    return replace(problem, sources=(source,))
+
+
 PROBLEMS = {"planar": planar_massive_with_capacitor,
+            "planar-zero-diagonal": planar_massive_without_resistance,
             "axisymmetric": axisymmetric_turns_and_winding}
 
 
