@@ -19,9 +19,10 @@ against 21 ms per solve; docs/performance.md).
 
 Only the last ``tail`` rows (the circuit unknowns, which the numbering puts after the
 field's) are scaled. Each takes its factor from its largest entry whose partner row is
-scaled already (field rows first); where no scaling makes the matrix symmetric
-(a moving conductor's convection, a static matrix without the S1 coupling) the matrix
-is factorised as it is.
+scaled already (field rows first), and every scaled row is then checked against its
+column. Where no factors pass (a moving conductor's motional current in the branch rows,
+a static matrix without the S1 coupling) the matrix is factorised as it is. Of the
+demos, all but the two with moving conductors become symmetric.
 """
 
 from __future__ import annotations
