@@ -115,9 +115,10 @@ def symmetrising(factorize, tail: int):
         return factorize
 
     def wrapped(matrix, *args, **kwargs):
-        d = row_scaling(matrix, tail)
+        m = matrix.tocsr()  # once: a CSC matrix is converted for the scaling and the copy
+        d = row_scaling(m, tail)
         if d is None:
             return factorize(matrix, *args, **kwargs)
-        return _ScaledSolve(factorize(scale_rows(matrix, d), *args, **kwargs), d)
+        return _ScaledSolve(factorize(scale_rows(m, d), *args, **kwargs), d)
 
     return wrapped
