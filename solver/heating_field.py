@@ -31,11 +31,14 @@ multipliers of the new temperatures (the field moves little between two field
 solutions, the permeability much only where an element crosses the Curie point),
 extrapolated in time (``PREDICT``); the iteration is Anderson-accelerated
 (``ACCELERATE``) and keeps its secant pairs from one field solution to the next unless
-the Curie transition moved. These change the number of linear solutions, not the
-result: the stopping rule is the same. Each iterate's matrix is the last one re-weighted
-on the saturable elements (:mod:`.reweighted`: one sparse product, the pattern and so the
-backend's analysis kept), where the fixed unknowns are zero; the system carrying the
-effective reluctivities is built once, for the converged solution.
+the Curie transition moved. Once a Curie front exists, the layer of steel around it is
+settled first, alone, with the rest of the model frozen (:mod:`.front`, ``FRONT``: 221
+instead of 315 linear solutions over the shaft-end demo's cycle). These change the number
+of linear solutions, not the result: the stopping rule is the same. Each iterate's matrix
+is the last one re-weighted on the saturable elements (:mod:`.reweighted`: one sparse
+product, the pattern and so the backend's analysis kept), where the fixed unknowns are
+zero; the system carrying the effective reluctivities is built once, for the converged
+solution.
 
 Not used, measured: solving each iterate by GMRES preconditioned with the last
 factorisation instead of factorising it. On the shaft demo (4.5e4 unknowns, PARDISO) a
@@ -51,7 +54,7 @@ from dataclasses import dataclass, replace
 
 import numpy as np
 
-from whorl.solver import linalg
+from whorl.solver import front, linalg
 from whorl.solver.coefficients import element_regions, magnetisation
 from whorl.solver.constants import MU0
 from whorl.solver.effective import (
@@ -83,6 +86,9 @@ of 40 K instead of 20 K moves the peak temperature at 3 mm by 10 K). Measured on
 passes the Curie point) the heated loss at 1e-2 is within 1.2e-4 of a solution converged to
 1e-6 (at 1e-3: 2e-5); over the cycle the temperatures at its three points move by at most
 0.025 K and the induced energy by 5e-5 against 1e-3, for 315 linear solutions instead of 470."""
+FRONT = True
+"""Settle the layer around a moving Curie front before each field solution's iteration
+(:mod:`.front`); this changes the number of linear solutions, not the result."""
 PREDICT = True
 """Start each warm field solution from the reluctivities extrapolated in time from the last
 two (their ratio, to the power of the ratio of the time steps, at most 1.5; each element's
@@ -103,6 +109,7 @@ class FieldRecord:
     shortfall_w: dict
     seconds: float = 0.0
     linear_solutions: int = 1  # linear systems solved (iterates of the effective iteration)
+    front_solutions: int = 0  # solves of the Curie front's layer alone (.front)
 
 
 def saturable_regions(problem) -> list[str]:
@@ -133,6 +140,8 @@ class FieldSolver:
         self.memory = []       # secant pairs of the accelerated iteration, kept across solutions
         self.reweighted = None  # the factorised matrix as a function of nu (see .reweighted)
         self.structure = None   # the reduction's structure (fixed values zero), or False
+        self.centroids = None   # of the mesh's elements (the Curie front's layer, .front)
+        self.local_factorize = linalg.session(self.backend)  # the layer's small block (.front)
 
     def _changing(self, problem, heated_elements):
         """Elements whose coefficients may change, the heated and the saturable ones, and
@@ -190,6 +199,28 @@ class FieldSolver:
         self.previous = {k: v for k, v in state.drive.items() if v != 0} or self.previous
         return state, solution
 
+    def _front(self, system, sat, nu, omega):
+        """The start ``nu`` with the layer around the Curie front settled (:mod:`.front`);
+        returns (nu, solves of the layer), or (nu, 0) where there is no front."""
+        sigma = np.asarray(system.sigma, float)[sat.elements]
+        if self.centroids is None:
+            mesh = system.basis.mesh
+            self.centroids = mesh.p[:, mesh.t].mean(axis=1).T
+        positions = front.layer_positions(sat, nu, sigma, omega, self.centroids)
+        if positions is None or not positions.size:
+            return nu, 0
+        local = front.LocalProblem(system, sat.elements[positions], self.reweighted.free_of,
+                                   omega)
+        reduced = self.structure
+        rhs = reduced.rhs(system.rhs_for(self.previous or {}), 1.0, 1j * omega)
+        try:
+            return front.relax(front.Layer(sat, positions), local,
+                               self.reweighted.rows(local.unknowns), self.local_factorize, nu,
+                               reduced.restrict(self.x_last), rhs[local.unknowns],
+                               reduced.expand)
+        except SolveError:  # a singular layer (no conductivity in it): start as before
+            return nu, 0
+
     def _saturable(self, system, problem, time_s):
         """The effective-permeability iteration with the supply found at every iterate;
         returns (DriveState, Solution, number of iterates)."""
@@ -237,6 +268,8 @@ class FieldSolver:
             omega = 2 * np.pi * self.study.frequency_hz
             self.reweighted.rebase_system(system.S0, system.S1, 1j * omega,
                                           system.nu[sat.elements])
+            if FRONT and self.x_last is not None:
+                start, found["front"] = self._front(system, sat, start, omega)
 
             def linear(nu_sat):
                 found["drive"], found["solution"] = self._drive(
@@ -254,6 +287,7 @@ class FieldSolver:
         x, nu_sat, report = iterate(linear, sat, start, f"t = {time_s:g} s",
                                     tolerance=TOLERANCE, accelerate=ACCELERATE,
                                     memory=self.memory)
+        report["front_solutions"] = found.pop("front", 0)
         self.nu_before = self.nu_sat
         self.times.append(time_s)
         self.m_last = (m, self.m_last[0])
@@ -278,4 +312,6 @@ class FieldSolver:
                              self.region_losses(solution), state.capped, state.shortfall_w)
         record.seconds = time.perf_counter() - t0
         record.linear_solutions = count
+        if self.saturable:
+            record.front_solutions = solution.nonlinear.get("front_solutions", 0)
         return record

@@ -51,9 +51,9 @@ class ReweightedMatrix:
         element = np.tile(np.arange(n_el), coo.data.size // n_el)
         free = np.full(red.size, -1, dtype=np.int64)
         free[red.free] = np.arange(red.free.size)
-        self._free_of = free[red.renumber]  # full numbering -> free unknown, or -1
-        rows = self._free_of[coo.indices[0]]
-        cols = self._free_of[coo.indices[1]]
+        self.free_of = free[red.renumber]  # full numbering -> free unknown, or -1
+        rows = self.free_of[coo.indices[0]]
+        cols = self.free_of[coo.indices[1]]
         keep = (rows >= 0) & (cols >= 0)  # entries on fixed unknowns are removed with them
         self.n = red.free.size
         self.n_elements = n_el
@@ -101,7 +101,7 @@ class ReweightedMatrix:
             rows = np.repeat(np.arange(m.shape[0]), np.diff(m.indptr))
             cols = m.indices
             if numbering == "full":
-                rows, cols = self._free_of[rows], self._free_of[cols]
+                rows, cols = self.free_of[rows], self.free_of[cols]
             keep = np.flatnonzero((rows >= 0) & (cols >= 0))
             wanted = self._keys(rows[keep], cols[keep])
             grew = self._grow(wanted)
@@ -139,3 +139,30 @@ class ReweightedMatrix:
         data = self._data0 + self._map @ (np.asarray(nu, float) - self._nu0)
         indptr, indices, _ = self._pattern
         return sp.csr_matrix((data, indices, indptr), shape=(self.n, self.n))
+
+    def rows(self, index) -> RowBlock:
+        """The rows ``index`` (free unknowns, sorted, no repeats) of M(nu), at the present
+        base (:meth:`rebase` or :meth:`rebase_system` first): see :class:`RowBlock`."""
+        return RowBlock(self, np.asarray(index, dtype=np.int64))
+
+
+class RowBlock:
+    """Rows ``index`` of a :class:`ReweightedMatrix` as a function of nu, from the rows'
+    share of W alone (for a residual on a few unknowns)."""
+
+    def __init__(self, parent: ReweightedMatrix, index: np.ndarray):
+        indptr, indices, _ = parent._pattern
+        counts = indptr[index + 1] - indptr[index]
+        first = np.repeat(indptr[index] - np.concatenate([[0], np.cumsum(counts)[:-1]]), counts)
+        at = first + np.arange(counts.sum())  # the rows' entries in the parent's data
+        self.n, self.index = parent.n, index
+        self._map = parent._map[at]
+        self._data0, self._nu0 = parent._data0[at], parent._nu0
+        self._indptr = np.concatenate([[0], np.cumsum(counts)])
+        self._indices = indices[at]
+
+    def matrix(self, nu) -> sp.csr_matrix:
+        """The rows of M(nu) (all columns) as a CSR matrix."""
+        data = self._data0 + self._map @ (np.asarray(nu, float) - self._nu0)
+        return sp.csr_matrix((data, self._indices, self._indptr),
+                             shape=(self.index.size, self.n))
