@@ -142,6 +142,7 @@ class FieldSolver:
         self.structure = None   # the reduction's structure (fixed values zero), or False
         self.centroids = None   # of the mesh's elements (the Curie front's layer, .front)
         self.local_factorize = linalg.session(self.backend)  # the layer's small block (.front)
+        self.scaled = None  # self.factorize with circuit rows scaled where that pays
 
     def _changing(self, problem, heated_elements):
         """Elements whose coefficients may change, the heated and the saturable ones, and
@@ -171,7 +172,9 @@ class FieldSolver:
         matrix on the free unknowns, when known already."""
         red = reduce(system) if red is None else red
         omega = 2 * np.pi * self.study.frequency_hz
-        factorize = circuit_scaling(self.backend, system, self.factorize)  # .symmetrise
+        if self.scaled is None:  # one wrapper, which keeps its row scaling (.symmetrise)
+            self.scaled = circuit_scaling(self.backend, system, self.factorize)
+        factorize = self.scaled
         solve = factorize(red.matrix(1.0, 1j * omega) if matrix is None else matrix)
         linear = not np.any(red.fixed_values)  # superposition of one solution per source
         unit = {}

@@ -28,6 +28,7 @@ Backends (factor + solve measured on whorl's P2 systems, see docs/performance.md
 from __future__ import annotations
 
 import ctypes
+import functools
 import glob
 import logging
 import os
@@ -126,12 +127,20 @@ def pardiso_available() -> bool:
     return _mkl() is not None
 
 
+@functools.lru_cache(maxsize=4)
+def _probe(n: int) -> np.ndarray:
+    """A fixed random vector of length ``n`` (read-only), for :func:`is_symmetric`."""
+    y = np.random.default_rng(12345).standard_normal(n)
+    y.flags.writeable = False
+    return y
+
+
 def is_symmetric(matrix, rtol: float = 1e-10) -> bool:
     """Whether ``matrix`` equals its (plain, not conjugate) transpose, tested cheaply:
     A y against A^T y for a random y (an unsymmetric part shows with probability 1)."""
     if matrix.shape[0] != matrix.shape[1]:
         return False
-    y = np.random.default_rng(12345).standard_normal(matrix.shape[0])
+    y = _probe(matrix.shape[0])
     ay, aty = matrix @ y, matrix.T @ y
     scale = np.abs(ay).max() if ay.size else 0.0
     return bool(np.abs(ay - aty).max() <= rtol * scale) if scale > 0 else True

@@ -71,14 +71,17 @@ def row_scaling(matrix, tail: int):
 
 
 def scale_rows(matrix, d):
-    """diag(d) M as a CSR matrix (M is left as it is)."""
-    m = matrix.tocsr(copy=True)
-    m.data = m.data.astype(np.result_type(m.dtype, d.dtype), copy=False)
+    """diag(d) M as a CSR matrix (M is left as it is; the result shares M's index arrays
+    when M is a CSR, so neither may change its structure)."""
+    m = matrix.tocsr()
+    data = m.data.astype(np.result_type(m.dtype, d.dtype), copy=True)
     rows = np.flatnonzero(d != 1)
     if rows.size:  # the circuit rows only: a slice from the first of them on
         start = rows[0]
-        m.data[m.indptr[start]:] *= np.repeat(d[start:], np.diff(m.indptr[start:]))
-    return m
+        data[m.indptr[start]:] *= np.repeat(d[start:], np.diff(m.indptr[start:]))
+    out = sp.csr_matrix((data, m.indices, m.indptr), shape=m.shape)
+    out.has_sorted_indices = m.has_sorted_indices
+    return out
 
 
 class _ScaledSolve:
@@ -114,11 +117,32 @@ def symmetrising(factorize, tail: int):
     if tail <= 0:
         return factorize
 
+    kept = {}  # the last factors and what they were found for
+
     def wrapped(matrix, *args, **kwargs):
         m = matrix.tocsr()  # once: a CSC matrix is converted for the scaling and the copy
-        d = row_scaling(m, tail)
+        d = _kept_scaling(kept, m, tail)
         if d is None:
             return factorize(matrix, *args, **kwargs)
         return _ScaledSolve(factorize(scale_rows(m, d), *args, **kwargs), d)
 
     return wrapped
+
+
+def _kept_scaling(kept: dict, m, tail: int):
+    """:func:`row_scaling` of the CSR ``m``, kept for the next matrix of the same pattern
+    whose circuit rows hold the same values (the iterates of a nonlinear solution change
+    the field block only). The factors depend on the circuit rows alone; a stale choice
+    could only cost speed, never accuracy: a matrix that the factors leave unsymmetric is
+    factorised as such (the backend checks), and D M x = D b has the solution of M x = b
+    for any nonsingular D."""
+    first = m.indptr[m.shape[0] - tail] if 0 < tail < m.shape[0] else 0
+    key = (m.shape, m.indptr, m.indices, m.data[first:])
+    old = kept.get("key")
+    if old is not None and old[0] == key[0] and all(
+            a is b or np.array_equal(a, b) for a, b in zip(old[1:], key[1:], strict=True)):
+        return kept["d"]
+    kept["key"] = (m.shape, m.indptr, m.indices, m.data[first:].copy())  # the pattern by
+    # reference: the re-weighted iterates share it, so the test above is an identity
+    kept["d"] = row_scaling(m, tail)
+    return kept["d"]

@@ -130,6 +130,37 @@ def test_pardiso_factorises_the_scaled_matrix_as_complex_symmetric(case):
     assert np.abs(x - ref).max() <= 1e-10 * np.abs(ref).max()
 
 
+def test_scaling_kept_for_iterates_and_found_again_when_circuit_rows_change(case,
+                                                                          monkeypatch):
+    """A wrapper finds the factors once for matrices that differ in their field block only
+    (the iterates of a nonlinear solution) and again when a circuit row changes; every
+    solve equals the plain one either way."""
+    import whorl.solver.symmetrise as symmetrise
+
+    _, red, tail = case
+    calls = []
+    monkeypatch.setattr(symmetrise, "row_scaling",
+                        lambda m, t: calls.append(1) or row_scaling(m, t))
+    wrapped = symmetrising(linalg.superlu, tail)
+    base = red.matrix(1.0, 1j * OMEGA).tocsr()
+    n_field = base.shape[0] - tail
+    rng = np.random.default_rng(11)
+    b = rng.standard_normal(base.shape[0]) + 0j
+    field_rows = np.repeat(np.arange(base.shape[0]), np.diff(base.indptr)) < n_field
+    for k, scale in enumerate((1.0, 1.3, 0.7)):  # field block scaled: a new iterate
+        m = base.copy()
+        m.data[field_rows] *= scale
+        m = sp.csr_matrix((m.data, base.indices, base.indptr), shape=base.shape)
+        x = wrapped(m)(b)
+        assert np.abs(m @ x - b).max() <= 1e-9 * np.abs(b).max()
+        assert len(calls) == 1, k
+    m = base.copy()
+    m.data[~field_rows] *= 2.0  # a circuit row changed
+    x = wrapped(m)(b)
+    assert np.abs(m @ x - b).max() <= 1e-9 * np.abs(b).max()
+    assert len(calls) == 2
+
+
 def test_static_matrix_is_left_as_it_is(case):
     _, red, tail = case
     assert row_scaling(red.matrix(1.0, 0.0), tail) is None
