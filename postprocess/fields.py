@@ -89,6 +89,43 @@ def interpolate_complex(basis, vec, gradient: bool = True):
     return value, grad
 
 
+_SUBSETS: dict = {}
+
+
+def _subset_tables(basis, elements):
+    """Basis values (K, E', Q), coordinates (2, E', Q) and dx (E', Q) on ``elements`` only,
+    cached for one basis and one element list (the heated parts of a heating study)."""
+    key = (id(basis), elements.tobytes())
+    if key not in _SUBSETS or _SUBSETS[key][0] is not basis:
+        _SUBSETS.clear()
+        phi, _, x = _basis_tables(basis)
+        _SUBSETS[key] = (basis, np.ascontiguousarray(phi[:, elements]),
+                         np.ascontiguousarray(x[:, elements]), basis.dx[elements],
+                         basis.element_dofs[:, elements])
+    return _SUBSETS[key][1:]
+
+
+def conductor_loss(solution):
+    """The eddy-current loss density |J|^2 / sigma at the quadrature points of the
+    conducting elements (sigma > 0) only, as :func:`quadrature_fields` computes it there
+    (it is zero elsewhere), without the flux density, forces and energy: what a heating
+    study needs at every field solution. Returns (elements, loss W/m^3 (E', Q), dv m^3
+    (E', Q)); None for a model with moving conductors (their loss needs grad A: use
+    :func:`quadrature_fields`)."""
+    system = solution.system
+    if getattr(system, "motion", None):
+        return None
+    basis, form = system.basis, system.form
+    sigma = np.asarray(system.sigma, float)
+    elements = np.flatnonzero(sigma > 0)
+    phi, x, dx, dofs = _subset_tables(basis, elements)
+    a_rate = _combine("ke,keq->eq", np.asarray(solution.a_rate)[dofs], phi)
+    u, _ = element_sources(solution)
+    driving = -a_rate + form.voltage_field(u[elements][:, None], x)
+    loss = sigma[elements][:, None] * np.abs(driving) ** 2
+    return elements, loss, system.kappa * dx * form.weight(x)
+
+
 def quadrature_fields(solution) -> QuadratureFields:
     """Evaluate every field quantity of ``solution`` at the quadrature points."""
     system = solution.system

@@ -16,7 +16,7 @@ import scipy.sparse as sp
 from skfem import Basis
 
 from whorl.postprocess.circuits import terminal_voltage
-from whorl.postprocess.fields import quadrature_fields
+from whorl.postprocess.fields import conductor_loss, quadrature_fields
 from whorl.postprocess.probes import _locate, line_points
 from whorl.postprocess.regions import region_totals
 from whorl.solver.heating import energy_balance
@@ -26,19 +26,38 @@ KELVIN = 273.15
 
 
 class FieldEvaluation:
-    """The postprocessing a heating loop needs, with the quadrature fields of the last
-    solution kept (loss density and region losses come from the same evaluation)."""
+    """The postprocessing a heating loop needs: the loss density (W/m^3, per element and
+    quadrature point) and the loss per region (W), both from one evaluation of the last
+    solution on its conducting elements (:func:`~.fields.conductor_loss`; the whole
+    :func:`~.fields.quadrature_fields` where conductors move)."""
 
     def __init__(self):
-        self._key, self._fields = None, None
+        self._key, self._loss = None, None
 
-    def _q(self, solution):
+    def _evaluate(self, solution):
+        """(loss density, loss per region) of ``solution``, kept for the next call."""
         if self._key is not solution:
-            self._key, self._fields = solution, quadrature_fields(solution)
-        return self._fields
+            found = conductor_loss(solution)
+            names = solution.problem.mesh.regions
+            if found is None:
+                q = quadrature_fields(solution)
+                totals = region_totals(solution, q)
+                self._loss = (q.loss, {n: t.loss_w for n, t in totals.items() if n in names})
+            else:
+                elements, loss, dv = found
+                tagged = solution.problem.mesh
+                density = np.zeros((tagged.mesh.t.shape[1], loss.shape[1]))
+                density[elements] = loss
+                index = tagged.region_of_element()[elements]
+                per = np.bincount(index, weights=(loss * dv).sum(1),
+                                  minlength=1 + len(tagged.regions))
+                by_name = dict(zip((tagged.background, *tagged.regions), per, strict=True))
+                self._loss = (density, {n: float(by_name[n]) for n in names})
+            self._key = solution
+        return self._loss
 
     def loss_density(self, solution):
-        return self._q(solution).loss
+        return self._evaluate(solution)[0]
 
     def terminals(self, solution):
         """Current and terminal voltage of every stranded and massive source."""
@@ -46,8 +65,7 @@ class FieldEvaluation:
                 for s in solution.problem.sources if isinstance(s, Massive | Stranded)}
 
     def region_losses(self, solution):
-        totals = region_totals(solution, self._q(solution))
-        return {n: t.loss_w for n, t in totals.items() if n in solution.problem.mesh.regions}
+        return self._evaluate(solution)[1]
 
 
 def temperature_probe(domain, points_m):
