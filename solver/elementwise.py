@@ -63,6 +63,30 @@ class ElementwiseMatrix:
         self._gather = sp.csr_matrix((data.ravel()[keep], (slot, element)),
                                      shape=(uniq.size, n))
         self._unit = np.asarray(self._gather.sum(axis=1)).ravel()
+        self._columns = None  # the gathering matrix by element (see restricted)
+
+    def restricted(self, positions, local, size: int) -> ElementwiseMatrix:
+        """The same element matrices for the elements ``positions`` (indices into this
+        one's elements) alone, on a new numbering: ``local`` maps this one's unknowns to
+        0..size-1 and must be set (>= 0) on every unknown those elements touch. No
+        quadrature: the entries are taken from this one's."""
+        if self._columns is None:
+            self._columns = self._gather.tocsc()
+        part = self._columns[:, positions].tocoo()  # (slot, element among positions)
+        rows = np.repeat(np.arange(self.size), np.diff(self._indptr))[part.row]
+        cols = self._indices[part.row]
+        new_rows, new_cols = local[rows], local[cols]
+        if np.any(new_rows < 0) or np.any(new_cols < 0):
+            raise ValueError("an unknown that the elements touch has no new number")
+        key = new_rows.astype(np.int64) * size + new_cols
+        uniq, slot = np.unique(key, return_inverse=True)
+        out = object.__new__(ElementwiseMatrix)
+        out.size, out.nelems, out._columns = size, len(positions), None
+        out._indptr = np.searchsorted(uniq // size, np.arange(size + 1)).astype(np.int32)
+        out._indices = (uniq % size).astype(np.int32)
+        out._gather = sp.csr_matrix((part.data, (slot, part.col)), shape=(uniq.size, out.nelems))
+        out._unit = np.asarray(out._gather.sum(axis=1)).ravel()
+        return out
 
     @property
     def nnz(self) -> int:

@@ -111,47 +111,59 @@ class LocalProblem:
 
     Unknowns: every free unknown that a layer element touches. Matrix: the layer
     elements' own share of M = S0 + j omega S1 (stiffness nu_e K_e and eddy mass
-    j omega sigma_e M_e, from the system's forms, :mod:`.elementwise`). Everything else
-    (the elements outside the layer, the circuit) enters as a fixed load
-    g = (M - M_layer) x_last on those rows: the field strength that the outside puts
-    on the layer's boundary is held, not the potential, so the flux through the layer
-    can change (a held potential would hold the flux the part carried before its front
-    moved, and settle the layer to that).
+    j omega sigma_e M_e). Everything else (the elements outside the layer, the circuit)
+    enters as a fixed load g = (M - M_layer) x_last on those rows: the field strength
+    that the outside puts on the layer's boundary is held, not the potential, so the flux
+    through the layer can change (a held potential would hold the flux the part carried
+    before its front moved, and settle the layer to that).
 
     Parameters
     ----------
-    system : System
-        The field system of this field solution (its basis, forms, conductivity).
-    elements : ndarray
-        Mesh indices of the layer's elements.
+    forms : SaturableForms
+        The unit stiffness and eddy mass of every saturable element (built once).
+    positions : ndarray
+        The layer's elements, as positions in the saturable elements.
+    sigma : ndarray
+        Conductivity of every saturable element (S/m).
     free_of : ndarray
         Full numbering -> free unknown, or -1 (:attr:`.ReweightedMatrix.free_of`).
     omega : float
         Angular frequency (rad/s).
     """
 
-    def __init__(self, system, elements, free_of, omega: float):
-        basis = system.basis.with_elements(elements)
-        dofs = np.unique(basis.element_dofs)
-        local = np.full(system.n_field, -1, dtype=np.int64)
+    def __init__(self, forms, positions, sigma, free_of, omega: float):
+        dofs = np.unique(forms.element_dofs[:, positions])
+        local = np.full(forms.n_field, -1, dtype=np.int64)
         local[dofs] = np.arange(dofs.size)
-        ones = np.ones((elements.size, basis.X.shape[-1]))
-        self._stiffness = ElementwiseMatrix(system.form.stiffness, basis, local, dofs.size,
-                                            nu=ones)
-        mass = ElementwiseMatrix(system.form.conductor_mass, basis, local, dofs.size,
-                                 sigma=ones)
+        self._stiffness = forms.stiffness.restricted(positions, local, dofs.size)
+        mass = forms.mass.restricted(positions, local, dofs.size)
         free = free_of[dofs]
         kept = np.flatnonzero(free >= 0)  # fixed unknowns (zero) drop out
         self.unknowns, column = np.unique(free[kept], return_inverse=True)
         # glued unknowns are summed, as the reduction sums them
         self._p = sp.csr_matrix((np.ones(kept.size), (kept, column)),
                                 shape=(dofs.size, self.unknowns.size))
-        sigma = np.asarray(system.sigma, float)[elements]
-        self._mass = (1j * omega) * (self._p.T @ mass.matrix(sigma) @ self._p)
+        self._mass = (1j * omega) * (self._p.T @ mass.matrix(sigma[positions]) @ self._p)
 
     def matrix(self, nu_layer):
         """The layer's own matrix on :attr:`unknowns` at reluctivities ``nu_layer`` (m/H)."""
         return (self._p.T @ self._stiffness.matrix(nu_layer) @ self._p + self._mass).tocsc()
+
+
+class SaturableForms:
+    """Unit-coefficient stiffness and eddy mass of every saturable element, on the field
+    unknowns (full numbering), built once for all the layers a heating study takes."""
+
+    def __init__(self, system, sat):
+        basis = sat.basis  # the field basis on the saturable elements
+        ones = np.ones((sat.elements.size, basis.X.shape[-1]))
+        everything = np.arange(system.n_field)
+        self.n_field = system.n_field
+        self.element_dofs = basis.element_dofs
+        self.stiffness = ElementwiseMatrix(system.form.stiffness, basis, everything,
+                                           system.n_field, nu=ones)
+        self.mass = ElementwiseMatrix(system.form.conductor_mass, basis, everything,
+                                      system.n_field, sigma=ones)
 
 
 def relax(layer: Layer, problem: LocalProblem, rows, factorize, nu, x_free, rhs, expand):

@@ -141,6 +141,7 @@ class FieldSolver:
         self.reweighted = None  # the factorised matrix as a function of nu (see .reweighted)
         self.structure = None   # the reduction's structure (fixed values zero), or False
         self.centroids = None   # of the mesh's elements (the Curie front's layer, .front)
+        self.forms = None       # the saturable elements' unit matrices (.front)
         self.local_factorize = linalg.session(self.backend)  # the layer's small block (.front)
         self.scaled = None  # self.factorize with circuit rows scaled where that pays
 
@@ -159,9 +160,8 @@ class FieldSolver:
             first = Reassembler(problem, elements)
             if not applies(first.base, regions):
                 self.reassembler = False
-            else:
+            else:  # its systems, the first too, keep one pattern (.reassembly)
                 self.reassembler = first
-                return first.base
         if self.reassembler is False:
             return assemble(problem)
         return self.reassembler.system(problem)
@@ -212,7 +212,9 @@ class FieldSolver:
         positions = front.layer_positions(sat, nu, sigma, omega, self.centroids)
         if positions is None or not positions.size:
             return nu, 0
-        local = front.LocalProblem(system, sat.elements[positions], self.reweighted.free_of,
+        if self.forms is None:
+            self.forms = front.SaturableForms(system, sat)
+        local = front.LocalProblem(self.forms, positions, sigma, self.reweighted.free_of,
                                    omega)
         reduced = self.structure
         rhs = reduced.rhs(system.rhs_for(self.previous or {}), 1.0, 1j * omega)

@@ -96,24 +96,38 @@ class ReweightedMatrix:
         m = matrix.tocsr() if matrix.format != "csr" else matrix
         kept = self._placed.get(name)
         grew = False
-        if not (kept is not None and np.array_equal(kept[0], m.indptr)
-                and np.array_equal(kept[1], m.indices)):
-            rows = np.repeat(np.arange(m.shape[0]), np.diff(m.indptr))
-            cols = m.indices
-            if numbering == "full":
-                rows, cols = self.free_of[rows], self.free_of[cols]
-            keep = np.flatnonzero((rows >= 0) & (cols >= 0))
-            wanted = self._keys(rows[keep], cols[keep])
+        if not self._kept_for(kept, m):
+            keep, wanted = self._wanted(m, numbering)
             grew = self._grow(wanted)
-            kept = (m.indptr.copy(), m.indices.copy(), keep,
-                    np.searchsorted(self._pattern[2], wanted))
+            at = np.searchsorted(self._pattern[2], wanted)
+            alone = np.unique(at).size == at.size  # no two entries share a slot
+            kept = (m.indptr.copy(), m.indices.copy(), keep, at, alone)
             self._placed[name] = kept
         values = m.data[kept[2]]
         size = self._pattern[2].size
+        if kept[4]:  # one slot each: a scatter
+            data = np.zeros(size, dtype=values.dtype)
+            data[kept[3]] = values
+            return data, grew
         data = np.bincount(kept[3], weights=values.real, minlength=size)
         if np.iscomplexobj(values):
             data = data + 1j * np.bincount(kept[3], weights=values.imag, minlength=size)
         return data, grew
+
+    @staticmethod
+    def _kept_for(kept, m) -> bool:
+        """Whether a kept placement was made for the pattern of the CSR ``m``."""
+        return kept is not None and np.array_equal(kept[0], m.indptr) and np.array_equal(
+            kept[1], m.indices)
+
+    def _wanted(self, m, numbering):
+        """(entries of the CSR ``m`` that are kept, their keys in the free numbering)."""
+        rows = np.repeat(np.arange(m.shape[0]), np.diff(m.indptr))
+        cols = m.indices
+        if numbering == "full":
+            rows, cols = self.free_of[rows], self.free_of[cols]
+        keep = np.flatnonzero((rows >= 0) & (cols >= 0))
+        return keep, self._keys(rows[keep], cols[keep])
 
     def rebase(self, matrix, nu0):
         """Take ``matrix`` (free unknowns, square sparse) as M at reluctivities ``nu0``
@@ -125,6 +139,11 @@ class ReweightedMatrix:
     def rebase_system(self, s0, s1, a1: complex, nu0):
         """Take M = S0 + a1 S1 from the system's own matrices (full numbering; the same
         reduction as at construction) at reluctivities ``nu0``: no reduction is formed."""
+        s0, s1 = s0.tocsr(), s1.tocsr()
+        new = [self._wanted(m, "full")[1] for name, m in (("S0", s0), ("S1", s1))
+               if not self._kept_for(self._placed.get(name), m)]
+        if new:  # both patterns into the union at once: one growth, not one each
+            self._grow(np.concatenate(new))
         for _ in range(2):  # a second pass if the pattern grew under the first placement
             d0, grew0 = self._place("S0", s0, "full")
             d1, grew1 = self._place("S1", s1, "full")

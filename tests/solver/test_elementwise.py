@@ -64,6 +64,29 @@ def test_reweighted_matrix_equals_assembly(domain, name, form):
     assert np.abs(ew.matrix(1.5) - uniform).max() <= 1e-13 * scale
 
 
+@pytest.mark.parametrize("name, form", [("capacity", weighted_mass),
+                                        ("conduction", weighted_conduction)])
+def test_restricted_matrix_equals_assembly_on_the_subset(domain, name, form):
+    """A few elements' matrices taken from the whole set, on a new numbering of the
+    unknowns they touch, equal skfem's assembly with the coefficient zero elsewhere."""
+    rng = np.random.default_rng(3)
+    positions = np.sort(rng.choice(domain.elements.size, domain.elements.size // 3,
+                                   replace=False))
+    c = rng.uniform(0.5, 2.0, positions.size)
+    everywhere = np.zeros(domain.elements.size)
+    everywhere[positions] = c
+    reference = _reference(form, domain.basis, domain.active, everywhere, domain.weight)
+    touched = np.unique(domain.local[domain.basis.element_dofs[:, positions]])
+    local = np.full(domain.size, -1)
+    local[touched] = np.arange(touched.size)
+    part = getattr(domain, name).restricted(positions, local, touched.size)
+    expected = reference[touched][:, touched]
+    assert np.abs(part.matrix(c) - expected).max() <= 1e-13 * np.abs(expected).max()
+    assert reference[np.setdiff1d(np.arange(domain.size), touched)].count_nonzero() == 0
+    with pytest.raises(ValueError):
+        getattr(domain, name).restricted(positions, np.full(domain.size, -1), 1)
+
+
 def test_shared_pattern_is_not_copied(domain):
     ew = domain.capacity
     a = ew.with_values(ew.values(1.0), copy=False)

@@ -88,7 +88,8 @@ def test_local_matrix_is_the_layers_share_of_the_system():
     system, sat, red, rew = pieces(problem)
     layer = np.arange(0, sat.elements.size, 3)  # any subset of the saturable elements
     elements = sat.elements[layer]
-    local = front.LocalProblem(system, elements, rew.free_of, OMEGA)
+    local = front.LocalProblem(front.SaturableForms(system, sat), layer,
+                               system.sigma[sat.elements], rew.free_of, OMEGA)
     rng = np.random.default_rng(4)
     nu_layer = rng.uniform(1e3, 1e5, elements.size)
     nu = np.zeros(system.basis.mesh.t.shape[1])
@@ -151,7 +152,8 @@ def test_a_converged_field_is_a_fixed_point_of_the_presolve():
     x, nu, _ = iterate(linear, sat, start_reluctivity(sat), "test", tolerance=1e-9)
     positions = front.layer_positions(sat, nu, system.sigma[sat.elements], OMEGA,
                                       centroids(system))
-    local = front.LocalProblem(system, sat.elements[positions], rew.free_of, OMEGA)
+    local = front.LocalProblem(front.SaturableForms(system, sat), positions,
+                               system.sigma[sat.elements], rew.free_of, OMEGA)
     rows = rew.rows(local.unknowns)
     x_free = red.restrict(x)
     settled, solves = front.relax(front.Layer(sat, positions), local, rows, solve, nu, x_free,
