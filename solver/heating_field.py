@@ -172,8 +172,10 @@ class FieldSolver:
         matrix on the free unknowns, when known already."""
         red = reduce(system) if red is None else red
         omega = 2 * np.pi * self.study.frequency_hz
-        if self.scaled is None:  # one wrapper, which keeps its row scaling (.symmetrise)
-            self.scaled = circuit_scaling(self.backend, system, self.factorize)
+        if self.scaled is None:  # one wrapper, which keeps its row scaling (.symmetrise);
+            # every matrix it gets is a new one, not used again: scaled in place
+            self.scaled = circuit_scaling(self.backend, system, self.factorize,
+                                          overwrite=True)
         factorize = self.scaled
         solve = factorize(red.matrix(1.0, 1j * omega) if matrix is None else matrix)
         linear = not np.any(red.fixed_values)  # superposition of one solution per source

@@ -70,15 +70,22 @@ def row_scaling(matrix, tail: int):
     return d if scale > 0 and abs(rows - cols).max() <= 1e-12 * scale else None
 
 
-def scale_rows(matrix, d):
-    """diag(d) M as a CSR matrix (M is left as it is; the result shares M's index arrays
-    when M is a CSR, so neither may change its structure)."""
+def scale_rows(matrix, d, overwrite: bool = False):
+    """diag(d) M as a CSR matrix. M is left as it is (the result shares its index arrays
+    when it is a CSR, so neither may change its structure), unless ``overwrite``: then a
+    CSR M of a type that holds the factors is scaled in place and returned."""
     m = matrix.tocsr()
-    data = m.data.astype(np.result_type(m.dtype, d.dtype), copy=True)
+    in_place = overwrite and m.dtype == np.result_type(m.dtype, d.dtype)
+    if in_place:
+        data = m.data
+    else:
+        data = m.data.astype(np.result_type(m.dtype, d.dtype), copy=True)
     rows = np.flatnonzero(d != 1)
     if rows.size:  # the circuit rows only: a slice from the first of them on
         start = rows[0]
         data[m.indptr[start]:] *= np.repeat(d[start:], np.diff(m.indptr[start:]))
+    if in_place:
+        return m
     out = sp.csr_matrix((data, m.indices, m.indptr), shape=m.shape)
     out.has_sorted_indices = m.has_sorted_indices
     return out
@@ -100,20 +107,22 @@ class _ScaledSolve:
         return getattr(self._solve, name)
 
 
-def circuit_scaling(backend, system, factorize):
+def circuit_scaling(backend, system, factorize, overwrite: bool = False):
     """``factorize`` wrapped by :func:`symmetrising` for ``system``'s circuit rows where
     ``backend`` (a registered backend function) gains by symmetry
     (``backend.exploits_symmetry``: PARDISO's L D L^T); as it is otherwise (SuperLU's LU
     and GMRES gain nothing, and GMRES's residual would weigh the scaled rows less)."""
     if not getattr(backend, "exploits_symmetry", False):
         return factorize
-    return symmetrising(factorize, system.size - system.n_field)
+    return symmetrising(factorize, system.size - system.n_field, overwrite)
 
 
-def symmetrising(factorize, tail: int):
+def symmetrising(factorize, tail: int, overwrite: bool = False):
     """``factorize`` (matrix, ... -> solve) for matrices whose last ``tail`` rows are
     circuit rows: each matrix that a row scaling makes symmetric goes to it scaled, and
-    its solve scales the right-hand sides alike, so callers see M x = b unchanged."""
+    its solve scales the right-hand sides alike, so callers see M x = b unchanged.
+    ``overwrite``: the callers give up the matrices they pass (each a new one, not used
+    again), so a CSR one is scaled in place instead of copied."""
     if tail <= 0:
         return factorize
 
@@ -124,7 +133,7 @@ def symmetrising(factorize, tail: int):
         d = _kept_scaling(kept, m, tail)
         if d is None:
             return factorize(matrix, *args, **kwargs)
-        return _ScaledSolve(factorize(scale_rows(m, d), *args, **kwargs), d)
+        return _ScaledSolve(factorize(scale_rows(m, d, overwrite), *args, **kwargs), d)
 
     return wrapped
 

@@ -161,6 +161,24 @@ def test_scaling_kept_for_iterates_and_found_again_when_circuit_rows_change(case
     assert len(calls) == 2
 
 
+def test_scaling_in_place_equals_the_copy(case):
+    """``overwrite`` scales a CSR in place (no copy of its entries) to the same matrix; a
+    CSC is converted, so its entries are never touched."""
+    _, red, tail = case
+    m = red.matrix(1.0, 1j * OMEGA)
+    d = row_scaling(m, tail)
+    copied = scale_rows(m, d)
+    csr = m.tocsr(copy=True)
+    before = csr.data.copy()
+    in_place = scale_rows(csr, d, overwrite=True)
+    assert in_place is csr and not np.array_equal(csr.data, before)
+    assert np.abs(in_place - copied).max() == 0
+    csc = m.tocsc(copy=True)
+    kept = csc.data.copy()
+    assert np.abs(scale_rows(csc, d, overwrite=True) - copied).max() == 0
+    assert np.array_equal(csc.data, kept)
+
+
 def test_static_matrix_is_left_as_it_is(case):
     _, red, tail = case
     assert row_scaling(red.matrix(1.0, 0.0), tail) is None
