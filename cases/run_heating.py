@@ -59,7 +59,7 @@ def solve_heating(case, problem, say):
             depth = case_depth([r[0] for r in rows], peak, spec.hardening_k)
             record["hardened_depth"][line.name] = {
                 f"depth_{case.length_unit}": depth}
-    solved = [f.solution for f in history.fields if f.solution is not None]
+    solved = [history.last_solution] if history.last_solution is not None else []
     info = {"history": history, "lines": lines, "solutions": solved,
             "solve_s": elapsed, "system": solved[-1].system if solved else None}
     return record, info

@@ -196,11 +196,11 @@ def heating_record(history, points: dict, reported_k=()) -> dict:
             "reactance_ohm": [None if np.isnan(x.imag) else float(x.imag) for x in z],
             "supply_limit": _limit(fields, name),
         }
-    out["field_solutions"] = sum(1 for f in fields if f.solution is not None)
-    out["field_solution_times_s"] = [float(f.time_s) for f in fields if f.solution is not None]
+    out["field_solutions"] = sum(1 for f in fields if f.solved)
+    out["field_solution_times_s"] = [float(f.time_s) for f in fields if f.solved]
     # factorised systems per field solution (more than 1: effective-permeability iterates)
     out["field_linear_solutions"] = [int(getattr(f, "linear_solutions", 1))
-                                     for f in fields if f.solution is not None]
+                                     for f in fields if f.solved]
     out["steps"] = history.steps
     out["rejected_steps"] = history.rejected_steps
     out["end_of_heating_s"] = history.end_of_heating_s
@@ -211,7 +211,7 @@ def heating_record(history, points: dict, reported_k=()) -> dict:
 def _limit(fields, name) -> dict | None:
     """From when a cap bound a power source and by how much its power fell short."""
     bound = [(f.time_s, f.capped.get(name), f.shortfall_w.get(name, 0.0)) for f in fields
-             if f.solution is not None and f.capped.get(name)]
+             if f.solved and f.capped.get(name)]
     if not bound:
         return None
     short = [s for _, _, s in bound]

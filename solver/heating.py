@@ -74,7 +74,11 @@ class HeatingHistory:
 
     ``temperature_k[n]`` holds the unknowns of :attr:`domain` at ``time_s[n]``;
     ``field_index[n]`` the field solution that was heating during the step that
-    ended at ``time_s[n]`` (for n = 0 the first one).
+    ended at ``time_s[n]`` (for n = 0 the first one). Each record of :attr:`fields`
+    keeps its numbers (loss density, terminals, region losses, iteration report); the
+    whole solution (its system's matrices, some 30 MB on the shaft demo) only while it
+    is the last one, then :attr:`last_solution`: a long run's memory does not grow with
+    its field solutions.
     """
 
     domain: object
@@ -92,6 +96,7 @@ class HeatingHistory:
     field_seconds: float = 0.0
     end_of_heating_s: float | None = None
     temperature_at_end_of_heating: np.ndarray | None = None
+    last_solution: object | None = None  # the last field solution (only it is kept whole)
 
 
 def _any_source_on(study: HeatingStudy, problem, time_s: float) -> bool:
@@ -137,16 +142,19 @@ def run_heating(problem, study: HeatingStudy, terminals, loss_density, region_lo
     def new_field(time_s, t):
         if not _any_source_on(study, problem, time_s):
             zero = np.zeros((domain.elements.size, domain.basis.X.shape[-1]))
-            rec = FieldRecord(time_s, None, zero, {}, {}, {}, {})
-            if history.fields and history.fields[-1].solution is not None:
+            rec = FieldRecord(time_s, None, zero, {}, {}, {}, {}, linear_solutions=0)
+            if history.fields and history.fields[-1].solved:
                 last = history.fields[-1]
                 rec.sources = {n: (0j, 0j) for n in last.sources}
                 rec.region_loss_w = dict.fromkeys(last.region_loss_w, 0.0)
             history.fields.append(rec)
         else:
             say(f"field solution {len(history.fields) + 1} at t = {time_s:.4g} s")
+            for earlier in history.fields:
+                earlier.solution = None  # its numbers are kept in the record
             history.fields.append(fields.solve(element_temperature(t), time_s,
                                                domain.elements))
+            history.last_solution = history.fields[-1].solution
             history.field_seconds += history.fields[-1].seconds
         rec = history.fields[-1]
         return domain.source_vector(rec.loss_density), domain.element_temperature(t)

@@ -110,6 +110,13 @@ class FieldRecord:
     seconds: float = 0.0
     linear_solutions: int = 1  # linear systems solved (iterates of the effective iteration)
     front_solutions: int = 0  # solves of the Curie front's layer alone (.front)
+    nonlinear: dict | None = None  # the effective iteration's report (saturable materials)
+
+    @property
+    def solved(self) -> bool:
+        """Whether a field was solved (False: no source on); :attr:`solution` itself may
+        have been released since (see :class:`~.heating.HeatingHistory`)."""
+        return self.linear_solutions > 0
 
 
 def saturable_regions(problem) -> list[str]:
@@ -321,4 +328,5 @@ class FieldSolver:
         record.linear_solutions = count
         if self.saturable:
             record.front_solutions = solution.nonlinear.get("front_solutions", 0)
+            record.nonlinear = solution.nonlinear
         return record
