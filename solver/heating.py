@@ -190,7 +190,7 @@ def run_heating(problem, study: HeatingStudy, terminals, loss_density, region_lo
         history.induced_j += result.induced_j
         history.stored_j += result.stored_j
         history.surface_loss_j += result.surface_loss_j
-        states = [*states[-1:], (result.t, h_try)]
+        states = [*states[-2:], (result.t, h_try)]  # three: the quadratic first guess
         restart = False
         history.time_s.append(t)
         history.temperature_k.append(result.t)

@@ -117,3 +117,24 @@ def test_radiation_cooling_of_a_thin_body():
     crossing = t - h * (500.0 - now) / (prev - now)   # linear between the last two steps
     exact = radiation_time(1000.0, 500.0, ta, eps, 2 * d, 2700.0 * 900.0 * w * d)
     assert crossing == pytest.approx(exact, rel=5e-3)
+
+
+def test_first_guess_is_exact_for_polynomials_of_its_degree():
+    """The step's first guess (``heatstep.predict``) through the last three states of
+    unequal steps reproduces a quadratic in time exactly, through the last two a linear
+    one (Lagrange interpolation); it only sets where the iteration starts."""
+    from whorl.solver.heatstep import predict
+
+    def quadratic(t):
+        return np.array([1.0 + 2.0 * t - 3.0 * t * t, -0.5 * t * t])
+
+    def linear(t):
+        return np.array([4.0 - t, 2.0 * t])
+
+    times = [0.0, 0.3, 0.45]  # steps 0.3 and 0.15, then 0.2
+    for f, quad in ((quadratic, True), (linear, False)):
+        history = [(f(times[0]), None), (f(times[1]), 0.3), (f(times[2]), 0.15)]
+        assert np.allclose(predict(history, 0.2, quadratic=quad), f(0.65), rtol=0, atol=1e-13)
+    curved = [(quadratic(times[0]), None), (quadratic(times[1]), 0.3),
+              (quadratic(times[2]), 0.15)]
+    assert not np.allclose(predict(curved, 0.2, quadratic=False), quadratic(0.65))
