@@ -26,15 +26,13 @@ import pytest
 import scipy.sparse as sp
 from skfem import asm
 from test_curie import A, bar_in_coil
-from test_heating_saturable import STEEL, with_bar
+from test_heating_saturable import STEEL, field_sequence, with_bar
 
 import whorl.solver.heating_field as heating_field
-from whorl.postprocess.heating import FieldEvaluation
 from whorl.solver import front
 from whorl.solver.coefficients import magnetisation
 from whorl.solver.effective import iterate, start_reluctivity
 from whorl.solver.heating import HeatingStudy
-from whorl.solver.heating_field import FieldSolver
 from whorl.solver.linalg import choose
 from whorl.solver.reduction import reduce
 from whorl.solver.reweighted import ReweightedMatrix
@@ -169,19 +167,11 @@ def test_heating_sequence_across_the_curie_point_agrees_with_and_without_presolv
     study = HeatingStudy(1000.0, 1.0, 0.1, heated=("bar",))
     surfaces = np.arange(700.0, 1000.0, 25.0)  # the surface passes 770 degC
 
-    def sequence():
-        ev = FieldEvaluation()
-        solver = FieldSolver(problem, study, ev.terminals, ev.loss_density, ev.region_losses,
-                             backend="scipy-superlu")
-        out = []
-        for k, surface in enumerate(surfaces):
-            hot = heated_problem(surface, depth=0.006)
-            out.append(solver.solve(hot.element_temperature_k, 0.1 * k, heated))
-        return out
-
-    with_front = sequence()
+    temperatures = [heated_problem(surface, depth=0.006).element_temperature_k
+                    for surface in surfaces]
+    with_front = field_sequence(problem, study, temperatures, heated)
     monkeypatch.setattr(heating_field, "FRONT", False)
-    without = sequence()
+    without = field_sequence(problem, study, temperatures, heated)
     for a, b in zip(with_front, without, strict=True):
         assert a.region_loss_w["bar"] == pytest.approx(b.region_loss_w["bar"], rel=5e-3)
     assert sum(a.front_solutions for a in with_front) > 0

@@ -58,6 +58,15 @@ def field_at(problem, temperature_c, supplies=None):
     return record.region_loss_w["bar"], record
 
 
+def field_sequence(problem, study, temperatures, heated):
+    """Field solutions of one FieldSolver (warm-started from each other) at the element
+    temperatures ``temperatures`` (K, one array per solution), 0.1 s apart."""
+    ev = FieldEvaluation()
+    solver = FieldSolver(problem, study, ev.terminals, ev.loss_density, ev.region_losses,
+                         backend="scipy-superlu")
+    return [solver.solve(t, 0.1 * k, heated) for k, t in enumerate(temperatures)]
+
+
 def with_bar(problem, material):
     return replace(problem, materials={**problem.materials, "bar": material})
 
@@ -140,21 +149,15 @@ def test_accelerated_warm_started_field_solutions_agree_with_plain_ones(monkeypa
     steps = [293.15 + 25.0 * k * np.exp(-(A - r) / 0.002) for k in range(5)]
     study = HeatingStudy(1000.0, 1.0, 0.1, heated=("bar",))
 
-    def sequence():
-        ev = FieldEvaluation()
-        solver = FieldSolver(problem, study, ev.terminals, ev.loss_density, ev.region_losses,
-                             backend="scipy-superlu")
-        out = []
-        for k, t in enumerate(steps):
-            temperature = np.full(n_el, 293.15)
-            temperature[heated] = t
-            out.append(solver.solve(temperature, 0.1 * k, heated))
-        return out
-
-    fast = sequence()
+    temperatures = []
+    for t in steps:
+        temperature = np.full(n_el, 293.15)
+        temperature[heated] = t
+        temperatures.append(temperature)
+    fast = field_sequence(problem, study, temperatures, heated)
     monkeypatch.setattr(heating_field, "ACCELERATE", False)
     monkeypatch.setattr(heating_field, "PREDICT", False)
-    plain = sequence()
+    plain = field_sequence(problem, study, temperatures, heated)
     for a, b in zip(fast, plain, strict=True):
         assert a.region_loss_w["bar"] == pytest.approx(b.region_loss_w["bar"], rel=5e-3)
     assert sum(a.linear_solutions for a in fast) < sum(b.linear_solutions for b in plain)
