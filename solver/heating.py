@@ -76,7 +76,7 @@ class HeatingHistory:
     ``field_index[n]`` the field solution that was heating during the step that
     ended at ``time_s[n]`` (for n = 0 the first one). Each record of :attr:`fields`
     keeps its numbers (loss density, terminals, region losses, iteration report); the
-    whole solution (its system's matrices, some 30 MB on the shaft demo) only while it
+    whole solution (its system's matrices, about 9 MB on the shaft demo) only while it
     is the last one, then :attr:`last_solution`: a long run's memory does not grow with
     its field solutions.
     """
