@@ -210,7 +210,7 @@ def start_reluctivity(sat):
 
 def iterate(linear, sat, nu, what: str, tolerance: float = NU_TOL,
             max_iterations: int = MAX_ITERATIONS, accelerate: bool = False,
-            alpha: float = ALPHA, memory: list | None = None):
+            alpha: float = ALPHA, memory: list | None = None, keep: dict | None = None):
     """The relaxed fixed-point iteration of the module docstring.
 
     Parameters
@@ -234,6 +234,9 @@ def iterate(linear, sat, nu, what: str, tolerance: float = NU_TOL,
         the history is dropped and a plain relaxed step taken. The stopping rule is the
         same (the change of an actual solution), so the result is the same to the
         tolerance; only the number of solutions differs.
+    keep : dict, optional
+        Receives ``"rms"``: the elements' RMS flux density of the returned solution (T),
+        for a caller that starts its next iteration from that solution.
 
     Returns
     -------
@@ -283,6 +286,8 @@ def iterate(linear, sat, nu, what: str, tolerance: float = NU_TOL,
                          f"{max_iterations} harmonic solutions the energy-weighted relative "
                          f"change of the reluctivity was {change:.2e} (tolerance "
                          f"{tolerance:g})")
+    if keep is not None:
+        keep["rms"] = rms
     log.debug("effective permeability at %s: %d solutions, changes %s", what, len(history),
               ", ".join(f"{h:.1e}" for h in history))
     return x, nu, {"iterations": len(history), "converged": True, "residual": change,

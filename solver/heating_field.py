@@ -141,6 +141,7 @@ class FieldSolver:
         self.sat = None        # the saturable part (elements, curves, multipliers)
         self.nu_sat = None     # its effective reluctivities at the last field solution
         self.x_last = None     # the last field solution (a warm start)
+        self.rms_last = None   # its elements' RMS flux density (T)
         self.nu_before = None  # ... at the one before (for the extrapolation)
         self.times = []        # times of the saturable field solutions
         self.m_last = (None, None)  # magnetisation multipliers at the last two
@@ -254,7 +255,8 @@ class FieldSolver:
         if self.nu_sat is None:
             start = start_reluctivity(sat)
         else:
-            from_b, from_h = effective_reluctivity(sat, self.x_last, self.nu_sat)
+            from_b, from_h = effective_reluctivity(sat, self.x_last, self.nu_sat,
+                                                   self.rms_last)
             start = np.sqrt(from_b * from_h)
             if PREDICT and self.nu_before is not None:
                 t1, t0 = self.times[-1], self.times[-2]
@@ -298,9 +300,11 @@ class FieldSolver:
                     state, problem, time_s, with_stiffness(reduced, state.S0))
                 return found["solution"].x
 
+        kept = {}
         x, nu_sat, report = iterate(linear, sat, start, f"t = {time_s:g} s",
                                     tolerance=TOLERANCE, accelerate=ACCELERATE,
-                                    memory=self.memory)
+                                    memory=self.memory, keep=kept)
+        self.rms_last = kept["rms"]  # of x: the next start needs no new flux density
         report["front_solutions"] = found.pop("front", 0)
         self.nu_before = self.nu_sat
         self.times.append(time_s)
