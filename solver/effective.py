@@ -208,6 +208,13 @@ def start_reluctivity(sat):
     return nu
 
 
+def relaxation(alpha: float, change: float, before: float) -> float:
+    """The next relaxation of the iteration's step in log nu: ``SHRINK`` times ``alpha``
+    (not below 0.05) when the change grew from ``before``, else ``GROW`` times it (at
+    most ``ALPHA``)."""
+    return max(alpha * SHRINK, 0.05) if change > before else min(alpha * GROW, ALPHA)
+
+
 def iterate(linear, sat, nu, what: str, tolerance: float = NU_TOL,
             max_iterations: int = MAX_ITERATIONS, accelerate: bool = False,
             alpha: float = ALPHA, memory: list | None = None, keep: dict | None = None):
@@ -256,11 +263,7 @@ def iterate(linear, sat, nu, what: str, tolerance: float = NU_TOL,
         history.append(change)
         if change <= tolerance:
             break  # x belongs to nu (kept, so that the solution is consistent)
-        grew = change > change_before
-        if grew:
-            alpha = max(alpha * SHRINK, 0.05)
-        else:
-            alpha = min(alpha * GROW, ALPHA)
+        alpha = relaxation(alpha, change, change_before)
         change_before = change
         residual = np.log(new / nu)
         step = alpha * residual

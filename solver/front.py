@@ -40,13 +40,13 @@ from scipy.spatial import cKDTree
 
 from whorl.solver.effective import (
     ALPHA,
-    GROW,
-    SHRINK,
     STEP_LIMIT,
     effective_reluctivity,
+    relaxation,
     weighted_change,
 )
 from whorl.solver.elementwise import ElementwiseMatrix
+from whorl.solver.saturable import rms_flux_density
 
 SKIN_DEPTHS = 3.0
 """Thickness of the layer below the front, in skin depths of the steel there."""
@@ -77,10 +77,7 @@ class Layer:
 
     def element_flux_density(self, x):
         """RMS |B| per element of the layer (T), as :meth:`.Saturable.element_flux_density`."""
-        x = np.asarray(x[: self.n_field])
-        cx, cy = self._curl
-        total = (np.abs(cx @ x) ** 2 + np.abs(cy @ x) ** 2).reshape(self._dx.shape)
-        return np.sqrt((total * self._dx).sum(axis=1) / self._dx.sum(axis=1))
+        return rms_flux_density(self._curl, self._dx, x[: self.n_field])
 
     def volumes(self):
         return self._volumes
@@ -201,8 +198,7 @@ def relax(layer: Layer, problem: LocalProblem, rows, factorize, nu, x_free, rhs,
         change = weighted_change(layer, x, nu[pos], new, rms)
         if change <= TOLERANCE:
             break
-        alpha = max(alpha * SHRINK, 0.05) if change > before else min(alpha * GROW, ALPHA)
-        before = change
+        alpha, before = relaxation(alpha, change, before), change
         step = np.clip(alpha * np.log(new / nu[pos]), -STEP_LIMIT, STEP_LIMIT)
         nu[pos] = nu[pos] * np.exp(step)
     return nu, solves

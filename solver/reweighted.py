@@ -140,15 +140,13 @@ class ReweightedMatrix:
         """Take M = S0 + a1 S1 from the system's own matrices (full numbering; the same
         reduction as at construction) at reluctivities ``nu0``: no reduction is formed."""
         s0, s1 = s0.tocsr(), s1.tocsr()
-        if self._pattern is None or not all(self._kept_for(self._placed.get(name), m)
-                                            for name, m in (("S0", s0), ("S1", s1))):
-            # both patterns into the union at once: one growth, not one each
-            self._grow(np.concatenate([self._wanted(m, "full")[1] for m in (s0, s1)]))
-        for _ in range(2):  # a second pass if the pattern grew under the first placement
-            d0, grew0 = self._place("S0", s0, "full")
-            d1, grew1 = self._place("S1", s1, "full")
-            if not grew1:
-                break
+        pairs = (("S0", s0), ("S1", s1))
+        if not all(self._kept_for(self._placed.get(name), m) for name, m in pairs):
+            # both patterns into the union at once: one growth, and neither placement
+            # below can grow it again (which would void the other's)
+            self._grow(np.concatenate([self._wanted(m, "full")[1] for _, m in pairs]))
+        d0, _ = self._place("S0", s0, "full")
+        d1, _ = self._place("S1", s1, "full")
         data0 = self._data0  # M's entries at nu0, written over (nothing else holds them)
         if data0 is None or data0.shape != d1.shape:
             data0 = np.empty(d1.shape, dtype=complex)

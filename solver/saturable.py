@@ -183,11 +183,17 @@ class Saturable:
     def element_flux_density(self, x):
         """Per saturable element: the RMS of |B| over the element (area mean of |B|^2), T.
         For complex phasors ``x`` (RMS), both parts count."""
-        x = np.asarray(x[: self.n_field])
-        cx, cy = self.curl_operator()
-        dx = self.basis.dx
-        total = (np.abs(cx @ x) ** 2 + np.abs(cy @ x) ** 2).reshape(dx.shape)
-        return np.sqrt((total * dx).sum(axis=1) / dx.sum(axis=1))
+        return rms_flux_density(self.curl_operator(), self.basis.dx, x[: self.n_field])
+
+
+def rms_flux_density(curl, dx, a):
+    """Per element: the RMS of |B| over it (T) for field dofs ``a``, from the curl operator
+    ``curl`` = (Cx, Cy) at its quadrature points (flattened element by element, see
+    :meth:`Saturable.curl_operator`) and their weights ``dx`` (elements, points)."""
+    a = np.asarray(a)
+    cx, cy = curl
+    total = (np.abs(cx @ a) ** 2 + np.abs(cy @ a) ** 2).reshape(dx.shape)
+    return np.sqrt((total * dx).sum(axis=1) / dx.sum(axis=1))
 
 
 def saturable_part(system) -> Saturable | None:
